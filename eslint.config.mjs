@@ -1,0 +1,10 @@
+import nextVitals from "eslint-config-next/core-web-vitals";
+import nextTs from "eslint-config-next/typescript";
+
+const config = [
+  ...nextVitals,
+  ...nextTs,
+  { ignores: [".next/**", ".data/**", "node_modules/**", "next-env.d.ts", "db/migrations/**"] },
+];
+
+export default config;
