@@ -1,0 +1,24 @@
+// Object key layout. Every key is made of random ids the database stores; a user-supplied file name never
+// becomes part of a key (no path tricks, no personal data in storage listings). One prefix per kind, so a
+// lifecycle rule or a backup policy can be set per kind:
+//
+//   artwork-sources/<uuid>.pdf              the uploaded artwork PDF of one revision
+//   rasters/<uuid>/<dpi>.png                the rasterised artwork page of one revision at one resolution
+//   scans/<uuid>.<tif|png|jpg>              one uploaded press-sheet scan
+//   crops/<inspection uuid>/<uuid>-<artwork|scan|difference>.png   crops around one finding
+//   tiles/…, reports/…                      reserved for zoom tiles and printed reports
+import { randomUUID } from "node:crypto";
+
+export type ScanFormat = "tif" | "png" | "jpg";
+export type CropKind = "artwork" | "scan" | "difference";
+
+export const newObjectId = (): string => randomUUID();
+
+export const keys = {
+  artworkSource: (id: string) => `artwork-sources/${id}.pdf`,
+  raster: (revisionObjectId: string, dpi: number) => `rasters/${revisionObjectId}/${dpi}.png`,
+  scan: (id: string, format: ScanFormat) => `scans/${id}.${format}`,
+  cropPrefix: (inspectionObjectId: string) => `crops/${inspectionObjectId}/`,
+  crop: (inspectionObjectId: string, findingObjectId: string, kind: CropKind) =>
+    `crops/${inspectionObjectId}/${findingObjectId}-${kind}.png`,
+};
