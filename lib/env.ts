@@ -28,6 +28,8 @@ const schema = z.object({
   ARTWORK_MAX_BYTES: z.coerce.number().int().positive().default(200 * MB),
   SCAN_MAX_BYTES: z.coerce.number().int().positive().default(500 * MB),
   WORKER_CONCURRENCY: z.coerce.number().int().positive().default(os.availableParallelism()),
+  /** Largest scan accepted, in million pixels (an A1 sheet at 600 dpi is about 280). */
+  SCAN_MAX_MEGAPIXELS: z.coerce.number().positive().default(300),
   UPLOAD_MAX_FILES: z.coerce.number().int().positive().default(50),
   /** How long a worker holds a job before another worker may take it over as stalled (ms). */
   WORKER_LOCK_MS: z.coerce.number().int().min(1000).default(30_000),
