@@ -64,10 +64,10 @@ describe("rasterisePage", () => {
     expect(r.pageCount).toBe(1);
   });
 
-  it.each([
+  it.each<[string, { trimOffsetMm?: [number, number]; cropBox?: boolean }]>([
     ["no trim box", {}],
-    ["a trim box offset 12 × 9 mm inside the media box", { trimOffsetMm: [12, 9] as [number, number] }],
-    ["a crop box different from media and trim box", { trimOffsetMm: [12, 9] as [number, number], cropBox: true }],
+    ["a trim box offset 12 × 9 mm inside the media box", { trimOffsetMm: [12, 9] }],
+    ["a crop box different from media and trim box", { trimOffsetMm: [12, 9], cropBox: true }],
   ])("places a rectangle within 1 px of px = mm × dpi / 25.4 with %s", async (_label, opts) => {
     const { pdf, rect } = await pageWithRectangle(opts);
     const dpi = 150;
