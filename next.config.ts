@@ -1,6 +1,8 @@
 import type { NextConfig } from "next";
 
 const nextConfig: NextConfig = {
+  // Tests build into their own directory so a test run never replaces the demo's build.
+  distDir: process.env.NEXT_DIST_DIR ?? ".next",
   // Native and heavy server packages stay outside the server bundle.
   serverExternalPackages: ["@napi-rs/canvas", "sharp", "pdfjs-dist", "@node-rs/argon2", "bullmq", "ioredis", "mysql2", "formidable"],
   poweredByHeader: false,

@@ -64,13 +64,20 @@ install_packages() {
 MARIADB_DIR() { echo "$DATA_DIR/mariadb"; }
 sql_quote() { printf "%s" "${1//\'/\'\'}"; }
 root_sql() { mariadb --no-defaults --socket="$RUN_DIR/mysqld.sock" -uroot -e "$1"; }
+app_sql() { MYSQL_PWD="$DB_PASSWORD" mariadb --no-defaults -h127.0.0.1 -P"$DB_PORT" -u"$DB_USER" -e "$1"; }
+create_db_sql() { echo "CREATE DATABASE IF NOT EXISTS \`$DB_NAME\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci;"; }
 
 start_mariadb() {
   [[ "$DB_LOCAL" = 1 ]] || { echo "MariaDB: $DB_HOST is not local, not starting one."; return 0; }
   local datadir; datadir="$(MARIADB_DIR)"
   if ! alive "$RUN_DIR/mysqld.pid"; then
     if port_open "$DB_PORT"; then
-      echo "MariaDB: port $DB_PORT is taken by another program; choose another port in DATABASE_URL." >&2
+      # Started some other way (by hand, or another checkout): use it if our credentials work there.
+      if app_sql "$(create_db_sql)" 2>/dev/null; then
+        echo "MariaDB   127.0.0.1:$DB_PORT  (already running, not managed here) database $DB_NAME"
+        return 0
+      fi
+      echo "MariaDB: port $DB_PORT is taken by a server that refuses user $DB_USER; choose another port in DATABASE_URL." >&2
       exit 1
     fi
     if [[ ! -d "$datadir/mysql" ]]; then
@@ -88,7 +95,7 @@ start_mariadb() {
   fi
   local name user password
   name="$DB_NAME"; user="$(sql_quote "$DB_USER")"; password="$(sql_quote "$DB_PASSWORD")"
-  root_sql "CREATE DATABASE IF NOT EXISTS \`$name\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci;
+  root_sql "$(create_db_sql)
     CREATE USER IF NOT EXISTS '$user'@'127.0.0.1' IDENTIFIED BY '$password';
     CREATE USER IF NOT EXISTS '$user'@'localhost' IDENTIFIED BY '$password';
     GRANT ALL PRIVILEGES ON \`$name%\`.* TO '$user'@'127.0.0.1';
@@ -96,11 +103,11 @@ start_mariadb() {
   echo "MariaDB   127.0.0.1:$DB_PORT  database $DB_NAME, user $DB_USER"
 }
 
-# Drop and re-create the app database (tests start from an empty one).
+# Drop and re-create the app database (tests start from an empty one). The app user may do this itself: it holds
+# every privilege on databases named after DATABASE_URL's.
 reset_db() {
   [[ "$DB_LOCAL" = 1 ]] || { echo "Refusing to reset a database on $DB_HOST." >&2; exit 1; }
-  root_sql "DROP DATABASE IF EXISTS \`$DB_NAME\`;"
-  start_mariadb >/dev/null
+  app_sql "DROP DATABASE IF EXISTS \`$DB_NAME\`; $(create_db_sql)"
   echo "MariaDB   database $DB_NAME is empty"
 }
 
@@ -117,7 +124,11 @@ redis_cli() { redis-cli -h 127.0.0.1 -p "$REDIS_PORT" ${REDIS_PASSWORD:+--no-aut
 start_redis() {
   [[ "$REDIS_LOCAL" = 1 ]] || { echo "Redis: not local, not starting one."; return 0; }
   if ! alive "$RUN_DIR/redis.pid"; then
-    port_open "$REDIS_PORT" && { echo "Redis: port $REDIS_PORT is taken; choose another in REDIS_URL." >&2; exit 1; }
+    if port_open "$REDIS_PORT"; then
+      redis_cli ping >/dev/null 2>&1 || { echo "Redis: port $REDIS_PORT is taken by something else; choose another in REDIS_URL." >&2; exit 1; }
+      echo "Redis     127.0.0.1:$REDIS_PORT  (already running, not managed here)"
+      return 0
+    fi
     mkdir -p "$DATA_DIR/redis"
     # BullMQ needs noeviction; nothing is persisted (jobs are re-queued from the database).
     redis-server --bind 127.0.0.1 --port "$REDIS_PORT" --save '' --appendonly no --dir "$DATA_DIR/redis" \
@@ -138,7 +149,10 @@ stop_redis() {
 start_node_service() { # name, port, command…
   local name="$1" port="$2"; shift 2
   if ! alive "$RUN_DIR/$name.pid"; then
-    port_open "$port" && { echo "$name: port $port is taken; choose another port." >&2; exit 1; }
+    if port_open "$port"; then
+      echo "$name: port $port is already answering; using that (not managed here)."
+      return 0
+    fi
     (cd "$ROOT" && exec "$@" >"$RUN_DIR/$name.log" 2>&1) &
     echo $! >"$RUN_DIR/$name.pid"
     wait_until "$name" 30 port_open "$port"
@@ -159,13 +173,23 @@ start_s3() {
   mkdir -p "$DATA_DIR/s3"
   start_node_service s3rver "$S3_PORT" node node_modules/s3rver/bin/s3rver.js -d "$DATA_DIR/s3" \
     -a 127.0.0.1 -p "$S3_PORT" --no-vhost-buckets --silent --configure-bucket "$S3_BUCKET"
+  # --configure-bucket only acts when s3rver starts; make sure the bucket exists when it was already running.
+  (cd "$ROOT" && node --no-warnings -e '
+    const { S3Client, CreateBucketCommand } = require("@aws-sdk/client-s3");
+    const [endpoint, bucket, region, id, secret] = process.argv.slice(1);
+    const client = new S3Client({ endpoint, region, forcePathStyle: true, credentials: { accessKeyId: id, secretAccessKey: secret } });
+    client.send(new CreateBucketCommand({ Bucket: bucket })).catch((e) => {
+      if (!/BucketAlreadyOwnedByYou|BucketAlreadyExists/.test(e.name)) { console.error(e.message); process.exit(1); }
+    });
+  ' "http://127.0.0.1:$S3_PORT" "$S3_BUCKET" "${S3_REGION:-us-east-1}" "${S3_ACCESS_KEY_ID:-S3RVER}" "${S3_SECRET_ACCESS_KEY:-S3RVER}")
   echo "S3 fake   http://127.0.0.1:$S3_PORT  bucket $S3_BUCKET (keys S3RVER/S3RVER)"
 }
 
 start_mail() {
   [[ "$SMTP_LOCAL" = 1 ]] || { echo "SMTP: not local, not starting maildev."; return 0; }
+  mkdir -p "$DATA_DIR/mail"
   start_node_service maildev "$SMTP_PORT" node node_modules/maildev/dist/bin/maildev.js \
-    --ip 127.0.0.1 --web-ip 127.0.0.1 -s "$SMTP_PORT" -w "$MAILDEV_WEB_PORT" --silent
+    --ip 127.0.0.1 --web-ip 127.0.0.1 -s "$SMTP_PORT" -w "$MAILDEV_WEB_PORT" --mail-directory "$DATA_DIR/mail" --silent
   wait_until "maildev web" 30 port_open "$MAILDEV_WEB_PORT"
   echo "Mail fake smtp://127.0.0.1:$SMTP_PORT  inbox http://127.0.0.1:$MAILDEV_WEB_PORT"
 }

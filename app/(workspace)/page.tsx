@@ -36,7 +36,7 @@ export default async function DashboardPage() {
                 <th scope="col" className="px-4 py-3 font-medium">Status</th>
                 <th scope="col" className="px-4 py-3 text-right font-medium">Sheets scanned</th>
                 <th scope="col" className="px-4 py-3 text-right font-medium">Awaiting sign-off</th>
-                <th scope="col" className="px-4 py-3 font-medium">Updated</th>
+                <th scope="col" className="hidden px-4 py-3 font-medium lg:table-cell">Updated</th>
               </tr>
             </thead>
             <tbody className="divide-y divide-rule">
@@ -47,7 +47,7 @@ export default async function DashboardPage() {
                       {job.jobNumber}
                     </Link>
                   </td>
-                  <td className="px-4 py-3">
+                  <td className="min-w-48 px-4 py-3">
                     <Link href={`/jobs/${job.id}`} className="hover:underline">
                       {job.title}
                     </Link>
@@ -59,7 +59,7 @@ export default async function DashboardPage() {
                   </td>
                   <td className="px-4 py-3 text-right tabular-nums">{job.scanCount}</td>
                   <td className="px-4 py-3 text-right tabular-nums">{job.openSheetCount}</td>
-                  <td className="whitespace-nowrap px-4 py-3 text-ink-muted">{dateFormat.format(job.updatedAt)}</td>
+                  <td className="hidden whitespace-nowrap px-4 py-3 text-ink-muted lg:table-cell">{dateFormat.format(job.updatedAt)}</td>
                 </tr>
               ))}
             </tbody>

@@ -6,7 +6,7 @@ import { buttonClass, Field, inputClass } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import { ROLE_LABELS, ROLES, type Role } from "@/lib/auth/policy";
 
-export function InviteForm({ customers }: { customers: { id: number; name: string }[] }) {
+export function InviteForm({ customers, validForHours }: { customers: { id: number; name: string }[]; validForHours: number }) {
   const [state, action, pending] = useActionState(inviteAction, {});
   const [role, setRole] = useState<Role>((state.values?.role as Role) ?? "reviewer");
   const errors = state.fieldErrors ?? {};
@@ -46,7 +46,7 @@ export function InviteForm({ customers }: { customers: { id: number; name: strin
       <button type="submit" disabled={pending} className={buttonClass}>
         {pending ? "Sending…" : "Send invitation"}
       </button>
-      <p className="text-xs text-ink-muted">The person receives a one-time link to choose a password. It expires after three days.</p>
+      <p className="text-xs text-ink-muted">The person receives a one-time link to choose a password. It works once and expires after {validForHours % 24 === 0 && validForHours >= 48 ? `${validForHours / 24} days` : `${validForHours} hours`}.</p>
     </form>
   );
 }

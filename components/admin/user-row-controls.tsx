@@ -3,6 +3,8 @@
 import { useActionState, useState } from "react";
 import { changeRoleAction, resendInviteAction, setDisabledAction } from "@/app/(workspace)/admin/users/actions";
 import { quietButtonClass } from "@/components/ui/field";
+
+const dangerButtonClass = quietButtonClass.replace("text-ink", "text-danger");
 import { ROLE_LABELS, ROLES, type Role } from "@/lib/auth/policy";
 
 const selectClass = "rounded-md border border-rule bg-surface px-2 py-1.5 text-sm focus:border-accent focus:outline-none";
@@ -67,7 +69,7 @@ export function AccountControls({ user, self }: Props) {
       <form action={toggle}>
         <input type="hidden" name="userId" value={user.id} />
         <input type="hidden" name="disabled" value={user.disabled ? "false" : "true"} />
-        <button type="submit" disabled={toggling} className={`${quietButtonClass} ${user.disabled ? "" : "text-danger"}`}>
+        <button type="submit" disabled={toggling} className={user.disabled ? quietButtonClass : dangerButtonClass}>
           {user.disabled ? "Enable" : "Disable"}
         </button>
       </form>

@@ -16,7 +16,7 @@ export type JobStatus = keyof typeof labels;
 
 export function JobStatusBadge({ status }: { status: JobStatus }) {
   return (
-    <span className={`inline-flex items-center rounded-full border px-2 py-0.5 text-xs font-medium ${tones[status]}`}>
+    <span className={`inline-flex items-center whitespace-nowrap rounded-full border px-2 py-0.5 text-xs font-medium ${tones[status]}`}>
       {labels[status]}
     </span>
   );

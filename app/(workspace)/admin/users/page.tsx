@@ -5,6 +5,7 @@ import { Notice } from "@/components/ui/notice";
 import { can } from "@/lib/auth/policy";
 import { requireActor } from "@/lib/auth/session";
 import { listCustomers, listUsers } from "@/lib/users/admin";
+import { INVITE_TTL_MS } from "@/lib/users/invites";
 
 export const metadata: Metadata = { title: "Users" };
 
@@ -69,10 +70,10 @@ export default async function UsersPage() {
             </tbody>
           </table>
         </div>
-        <section className="h-fit rounded-xl border border-rule bg-surface p-6 shadow-sm" aria-labelledby="invite-heading">
+        <section className="order-first h-fit rounded-xl border border-rule bg-surface p-6 shadow-sm lg:order-none" aria-labelledby="invite-heading">
           <h2 id="invite-heading" className="text-base font-semibold">Invite a person</h2>
           <div className="mt-4">
-            <InviteForm customers={customers} />
+            <InviteForm customers={customers} validForHours={INVITE_TTL_MS / 3_600_000} />
           </div>
         </section>
       </div>
