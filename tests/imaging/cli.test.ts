@@ -1,0 +1,104 @@
+import { spawnSync } from "node:child_process";
+import { mkdtempSync, readdirSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import path from "node:path";
+import sharp from "sharp";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { rasterisePage } from "@/lib/imaging/rasterise";
+import { makeCartonPdf } from "../support/carton";
+
+const ROOT = path.resolve(import.meta.dirname, "../..");
+const TSX = path.join(ROOT, "node_modules/.bin/tsx");
+const CLI = path.join(ROOT, "lib/imaging/cli.ts");
+const DPI = 150;
+const DOT = { xMm: 60, yMm: 110, diameterMm: 1.5 };
+let dir: string;
+
+function inspect(...args: string[]) {
+  const run = spawnSync(TSX, [CLI, ...args], { cwd: ROOT, encoding: "utf8", env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" } });
+  return { code: run.status, stdout: run.stdout, stderr: run.stderr };
+}
+const file = (name: string) => path.join(dir, name);
+
+beforeAll(async () => {
+  dir = mkdtempSync(path.join(tmpdir(), "tympan-cli-"));
+  const { pdf } = await makeCartonPdf({ widthMm: 200, heightMm: 140, rows: 1, columns: 2 });
+  writeFileSync(file("artwork.pdf"), pdf);
+  // A scan already in the artwork's grid: the artwork itself, and the same with a dark 1.5 mm dot in up 1.
+  const r = await rasterisePage(pdf, { dpi: DPI });
+  const raw = { raw: { width: r.width, height: r.height, channels: 4 as const } };
+  await sharp(Buffer.from(r.data), raw).png().withDensity(DPI).toFile(file("clean.png"));
+  const marked = Buffer.from(r.data);
+  const k = DPI / 25.4;
+  for (let y = 0; y < r.height; y++) {
+    for (let x = 0; x < r.width; x++) {
+      if (Math.hypot((x + 0.5) / k - DOT.xMm, (y + 0.5) / k - DOT.yMm) < DOT.diameterMm / 2) marked.set([40, 45, 95], (y * r.width + x) * 4);
+    }
+  }
+  await sharp(marked, raw).png().withDensity(DPI).toFile(file("dot.png"));
+  writeFileSync(file("notes.pdf"), "these are notes, not a PDF");
+});
+
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+// Exit status follows diff(1) (POSIX.1-2017, "diff", EXIT STATUS): 0 no differences, 1 differences, >1 trouble.
+describe("npm run inspect", () => {
+  it("exits 0 on a clean sheet and prints a summary", () => {
+    const run = inspect("--artwork", file("artwork.pdf"), "--scan", file("clean.png"), "--pre-aligned");
+    expect(run.stderr).toBe("");
+    expect(run.code).toBe(0);
+    expect(run.stdout).toMatch(/No findings\./);
+    expect(run.stdout).toMatch(/spectrophotometer/);
+  });
+
+  it("exits 1 with --json: exactly one JSON object of the documented shape, the dot found in up 1", () => {
+    const run = inspect("--artwork", file("artwork.pdf"), "--scan", file("dot.png"), "--pre-aligned", "--ups", "1x2", "--json");
+    expect(run.code).toBe(1);
+    expect(run.stderr).toBe("");
+    expect(run.stdout.trim().split("\n")).toHaveLength(1);
+    const out = JSON.parse(run.stdout);
+    expect(Object.keys(out)).toEqual(["alignment", "covered_mm", "drift", "findings", "timings_ms"]);
+    expect(Object.keys(out.alignment)).toEqual(["rotation_deg", "scale", "tx_mm", "ty_mm", "residual_px"]);
+    expect(Object.keys(out.covered_mm)).toEqual(["x", "y", "w", "h"]);
+    expect(Object.keys(out.drift)).toEqual(["deltaE00"]);
+    expect(out.findings).toHaveLength(1);
+    const f = out.findings[0];
+    expect(Object.keys(f)).toEqual(["x_mm", "y_mm", "w_mm", "h_mm", "area_mm2", "kind", "deltaE00_mean", "deltaE00_max", "up"]);
+    expect(f.kind).toBe("extra_ink");
+    expect(f.up).toBe(1);
+    expect(f.x_mm).toBeLessThanOrEqual(DOT.xMm - 0.5);
+    expect(f.x_mm + f.w_mm).toBeGreaterThanOrEqual(DOT.xMm + 0.5);
+    expect(f.y_mm).toBeLessThanOrEqual(DOT.yMm - 0.5);
+    expect(f.y_mm + f.h_mm).toBeGreaterThanOrEqual(DOT.yMm + 0.5);
+    expect(out.covered_mm.w).toBeCloseTo(200, 0);
+    expect(typeof out.timings_ms.rasterise).toBe("number");
+  });
+
+  it("--annotate writes a PNG of the artwork with the finding boxed, and leaves no temporary file", async () => {
+    const out = file("annotated.png");
+    const run = inspect("--artwork", file("artwork.pdf"), "--scan", file("dot.png"), "--pre-aligned", "--annotate", out);
+    expect(run.code).toBe(1);
+    const { data, info } = await sharp(out).raw().toBuffer({ resolveWithObject: true });
+    const art = await sharp(file("clean.png")).metadata();
+    expect([info.width, info.height]).toEqual([art.width, art.height]);
+    let red = 0;
+    for (let i = 0; i < data.length; i += info.channels) if (data[i] > 180 && data[i + 1] < 60 && data[i + 2] < 60) red++;
+    expect(red).toBeGreaterThan(20);
+    expect(readdirSync(dir).filter((n) => n.endsWith(".tmp"))).toEqual([]);
+  });
+
+  it.each([
+    ["a missing scan file", ["--artwork", "ART", "--scan", "MISSING"], /^error: file_unreadable: /],
+    ["an artwork that is not a PDF", ["--artwork", "NOTES", "--scan", "CLEAN"], /^error: not_a_pdf: /],
+    ["a malformed --ups", ["--artwork", "ART", "--scan", "CLEAN", "--ups", "three"], /^error: usage: /],
+    ["an unknown option", ["--artwork", "ART", "--scan", "CLEAN", "--colour"], /^error: usage: /],
+    ["an unknown profile", ["--artwork", "ART", "--scan", "CLEAN", "--profile", "nonesuch", "--pre-aligned"], /^error: unknown_profile: /],
+  ])("exits 2 with one line on stderr for %s", (_label, args, pattern) => {
+    const names: Record<string, string> = { ART: "artwork.pdf", MISSING: "missing.tif", NOTES: "notes.pdf", CLEAN: "clean.png" };
+    const run = inspect(...args.map((a) => (names[a] ? file(names[a]) : a)), "--json");
+    expect(run.code).toBe(2);
+    expect(run.stdout).toBe("");
+    expect(run.stderr.split("\n").filter(Boolean)).toHaveLength(1);
+    expect(run.stderr).toMatch(pattern);
+  });
+});
