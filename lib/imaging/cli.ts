@@ -8,7 +8,7 @@ import { identityAlignment, inspectSheet } from "./inspect";
 import { loadScan } from "./load-scan";
 import { getProfile } from "./profiles";
 import { MAX_DPI, MIN_DPI, rasterisePage } from "./rasterise";
-import { ImagingError, type ArtworkRaster, type Finding, type InspectionResult, type RectMm, type UpsLayout } from "./types";
+import { ImagingError, type Alignment, type ArtworkRaster, type Finding, type InspectionResult, type RectMm, type UpsLayout } from "./types";
 
 const USAGE = `Usage: npm run inspect -- --artwork ARTWORK.pdf --scan SCAN.tif [options]
 
@@ -54,7 +54,7 @@ export async function runInspect(argv: string[], io: Io): Promise<number> {
     const artwork = await timed("rasterise", () => rasterisePage(pdfBytes, { page: args.page, dpi: artworkDpi }));
     const profile = getProfile(args.profile);
     profile.excludedAreasMm.push(...args.exclude);
-    let alignment;
+    let alignment: Alignment | undefined;
     if (args.preAligned) {
       if (scan.width !== artwork.width || scan.height !== artwork.height || scan.dpi !== artwork.dpi) {
         throw new ImagingError(
