@@ -42,18 +42,39 @@ export interface UpsLayout {
 }
 
 export interface Alignment {
+  /** Turn of the sheet on the scan, degrees, clockwise as seen on screen (y down), −180 … 180. */
   rotationDeg: number;
+  /** Size on the scan relative to the artwork's true size (the resolutions' ratio taken out). */
   scale: number;
+  /** Where the page's top-left corner lies on the scan, mm from the scan's top-left. */
   txMm: number;
   tyMm: number;
+  /** RMS misfit of the final fit (artwork px and mm). */
   residualPx: number;
   residualMm: number;
   /** Correlation of the aligned pair (1 = identical structure); used to refuse a wrong artwork. */
   correlation: number;
   /** Affine map from artwork px to scan px: [a, b, c, d, e, f] with xs = a·x + b·y + c, ys = d·x + e·y + f. */
   artworkToScan: [number, number, number, number, number, number];
-  /** Part of the artwork page the scan covers, in mm. */
+  /** Part of the artwork page the scan covers, in mm (bounding box; the warp's mask is exact). */
   coveredMm: RectMm;
+  /** Local displacements for paper stretch on top of artworkToScan (optional local refinement). */
+  localField?: DisplacementField;
+}
+
+/**
+ * A grid of displacements in artwork px: the scan point of artwork pixel p is artworkToScan(p + d(p)), d
+ * bilinear between nodes (held constant beyond the outer nodes). Node (i, j) sits at artwork pixel
+ * (originX + i·step, originY + j·step); dx, dy are row-major, rows × cols.
+ */
+export interface DisplacementField {
+  originX: number;
+  originY: number;
+  step: number;
+  cols: number;
+  rows: number;
+  dx: number[];
+  dy: number[];
 }
 
 export type FindingKind = "extra_ink" | "missing_ink" | "colour_shift";

@@ -1,0 +1,164 @@
+// COARSE placement of the sheet: which way round it lies on the glass, its angle to within a degree or so and
+// where it is, by whole-page correlation on small grey levels (about 15 000 pixels each) over a sweep of
+// rotations: the four quarter turns × −6° … +6° in 1.5° steps.
+//
+// Why whole-page correlation rather than feature matching: a press sheet carries many identical ups, and the
+// ratio test of descriptor matching throws the repeated features away — ORB locked one row of ups off on a
+// 15-up sheet. The page as a whole (margins, colour bar, sheet edge, the imposition itself) has one best
+// overlap. OpenCV's matchTemplate (TM_CCOEFF_NORMED, zero-mean normalised, so the scanner's tone and the lid
+// colour do not matter) does each candidate in about a millisecond at this size.
+//
+// Two ways round, chosen per candidate by size: when the whole sheet fits on the scan (sheet smaller than the
+// glass, background around it) the rotated artwork is looked for in the scan; when the scan sees only part
+// of the sheet (a press sheet larger than the flatbed) the scan, turned back, is looked for in the artwork,
+// which is padded with paper so that the scan window may also run past the sheet's edge.
+import { apply, invert, rotation, translate, type Affine } from "./align-affine";
+import { withMats, type OpenCv } from "./opencv";
+import type { GreyLevel } from "./pyramid";
+
+export interface CoarseResult {
+  /** Artwork level → scan level. */
+  map: Affine;
+  /** Turn of the sheet in degrees (quarter turn + angle), clockwise on screen. */
+  angleDeg: number;
+  score: number;
+}
+
+const ANGLES = [-6, -4.5, -3, -1.5, 0, 1.5, 3, 4.5, 6];
+const QUARTERS = [0, 90, 180, 270];
+
+/** `ratio`: scan level pixels per artwork level pixel at nominal size (the resolutions' ratio). */
+export function coarsePlacement(cv: OpenCv, art: GreyLevel, scan: GreyLevel, ratio: number): CoarseResult {
+  return withMats((keep) => {
+    const artMat = keep(cv.matFromArray(art.height, art.width, cv.CV_32F, art.data));
+    const scanMat = keep(cv.matFromArray(scan.height, scan.width, cv.CV_32F, scan.data));
+    const artFill = borderMean(art), scanFill = borderMean(scan);
+    const tryAngle = (deg: number) => candidate(cv, keep, artMat, scanMat, art, scan, artFill, scanFill, deg, ratio);
+
+    let best: CoarseResult | null = null;
+    let bestScores: number[] = [];
+    for (const q of QUARTERS) {
+      const results = ANGLES.map((a) => tryAngle(q + a));
+      const top = results.reduce((m, r) => (r.score > m.score ? r : m));
+      if (!best || top.score > best.score) {
+        best = top;
+        bestScores = results.map((r) => r.score);
+      }
+    }
+    // Refine the angle with a parabola through the best sample and its neighbours, then place it again.
+    const quarter = Math.round(best!.angleDeg / 90) * 90;
+    const i = ANGLES.indexOf(Math.round((best!.angleDeg - quarter) * 2) / 2);
+    if (i > 0 && i < ANGLES.length - 1) {
+      const off = peak(bestScores[i - 1], bestScores[i], bestScores[i + 1]);
+      if (off !== 0) {
+        const refined = tryAngle(quarter + ANGLES[i] + off * (ANGLES[1] - ANGLES[0]));
+        if (refined.score >= best!.score - 0.02) best = refined;
+      }
+    }
+    return best!;
+  });
+}
+
+function candidate(
+  cv: OpenCv,
+  keep: <M extends { delete(): void }>(m: M) => M,
+  artMat: unknown,
+  scanMat: unknown,
+  art: GreyLevel,
+  scan: GreyLevel,
+  artFill: number,
+  scanFill: number,
+  deg: number,
+  ratio: number,
+): CoarseResult {
+  const turn = rotation(deg, ratio);
+  const box = bounds(turn, art.width, art.height);
+  const sheetFits = box.w <= scan.width * 1.06 && box.h <= scan.height * 1.06;
+  if (sheetFits) {
+    // Rotated artwork sought in the scan (padded a little so a sheet as large as the glass still has play).
+    const m = translate(turn, -box.x, -box.y);
+    const tw = Math.ceil(box.w), th = Math.ceil(box.h);
+    const templ = keep(warp(cv, artMat, m, tw, th, artFill));
+    const px = Math.max(0, tw - scan.width) + Math.ceil(0.05 * tw) + 2;
+    const py = Math.max(0, th - scan.height) + Math.ceil(0.05 * th) + 2;
+    const { x, y, score } = match(cv, keep, scanMat, templ, px, py);
+    return { map: translate(m, x - px, y - py), angleDeg: deg, score };
+  }
+  // Scan, turned back, sought in the artwork padded with paper on every side.
+  const back = invert(turn);
+  const sbox = bounds(back, scan.width, scan.height);
+  const n = translate(back, -sbox.x, -sbox.y);
+  const tw = Math.ceil(sbox.w), th = Math.ceil(sbox.h);
+  const templ = keep(warp(cv, scanMat, n, tw, th, scanFill));
+  const px = Math.max(0, tw - art.width) + Math.ceil(0.3 * tw) + 2;
+  const py = Math.max(0, th - art.height) + Math.ceil(0.3 * th) + 2;
+  const { x, y, score } = match(cv, keep, artMat, templ, px, py, artFill);
+  return { map: invert(translate(n, x - px, y - py)), angleDeg: deg, score };
+}
+
+function warp(cv: OpenCv, src: unknown, m: Affine, w: number, h: number, fill: number) {
+  const out = new cv.Mat();
+  const M = cv.matFromArray(2, 3, cv.CV_64F, m);
+  try {
+    cv.warpAffine(src, out, M, new cv.Size(w, h), cv.INTER_LINEAR, cv.BORDER_CONSTANT, new cv.Scalar(fill));
+  } finally {
+    M.delete();
+  }
+  return out;
+}
+
+/** Best position of `templ` in `image` padded by (px, py), with a parabolic sub-pixel peak. */
+function match(
+  cv: OpenCv,
+  keep: <M extends { delete(): void }>(m: M) => M,
+  image: unknown,
+  templ: { rows: number; cols: number },
+  px: number,
+  py: number,
+  fill?: number,
+) {
+  const padded = keep(new cv.Mat());
+  if (fill === undefined) cv.copyMakeBorder(image, padded, py, py, px, px, cv.BORDER_REPLICATE);
+  else cv.copyMakeBorder(image, padded, py, py, px, px, cv.BORDER_CONSTANT, new cv.Scalar(fill));
+  const res = keep(new cv.Mat());
+  cv.matchTemplate(padded, templ, res, cv.TM_CCOEFF_NORMED);
+  const r = res.data32F as Float32Array, w = res.cols as number, h = res.rows as number;
+  let bi = 0;
+  for (let i = 1; i < r.length; i++) if (r[i] > r[bi] || !Number.isFinite(r[bi])) bi = i;
+  const bx = bi % w, by = (bi - bx) / w;
+  const at = (x: number, y: number) => r[Math.min(h - 1, Math.max(0, y)) * w + Math.min(w - 1, Math.max(0, x))];
+  return { x: bx + peak(at(bx - 1, by), r[bi], at(bx + 1, by)), y: by + peak(at(bx, by - 1), r[bi], at(bx, by + 1)), score: r[bi] };
+}
+
+/** Offset of a parabola's vertex through three equally spaced samples, within ±0.5. */
+export function peak(l: number, c: number, r: number): number {
+  const den = l - 2 * c + r;
+  return den < 0 ? Math.max(-0.5, Math.min(0.5, (0.5 * (l - r)) / den)) : 0;
+}
+
+/** Bounding box of the image [−0.5, w−0.5] × [−0.5, h−0.5] under m, in pixel-centre coordinates. */
+function bounds(m: Affine, w: number, h: number) {
+  const pts = [
+    [-0.5, -0.5],
+    [w - 0.5, -0.5],
+    [-0.5, h - 0.5],
+    [w - 0.5, h - 0.5],
+  ].map(([x, y]) => apply(m, x, y));
+  const x0 = Math.min(...pts.map((p) => p[0])), y0 = Math.min(...pts.map((p) => p[1]));
+  const x1 = Math.max(...pts.map((p) => p[0])), y1 = Math.max(...pts.map((p) => p[1]));
+  // Shift so the box's first pixel centre lands on 0.
+  return { x: x0 + 0.5, y: y0 + 0.5, w: x1 - x0, h: y1 - y0 };
+}
+
+function borderMean(l: GreyLevel): number {
+  let s = 0, n = 0;
+  for (let x = 0; x < l.width; x++) {
+    s += l.data[x] + l.data[(l.height - 1) * l.width + x];
+    n += 2;
+  }
+  for (let y = 0; y < l.height; y++) {
+    s += l.data[y * l.width] + l.data[y * l.width + l.width - 1];
+    n += 2;
+  }
+  return s / n;
+}

@@ -1,0 +1,77 @@
+// The scan resampled into the artwork's pixel grid (bilinear), one rectangle at a time: a B1 sheet at 300 dpi
+// is ~98 megapixels, so callers work in tiles and nothing full-size beyond the 8-bit result is allocated.
+// Plain JavaScript on purpose: OpenCV's warp would first need the whole scan copied into its 1 GB heap.
+import type { Affine } from "./align-affine";
+import type { DisplacementField } from "./align-patches";
+import type { Alignment, RgbaImage } from "./types";
+
+export interface PxRegion {
+  x: number;
+  y: number;
+  w: number;
+  h: number;
+}
+
+/**
+ * `region` (artwork px, default the whole page) of the scan seen through the alignment; `mask` is 1 where the
+ * scan covers the pixel. With a local field the scan point of artwork pixel p is artworkToScan(p + field(p)).
+ */
+export function warpScanToArtwork(
+  scan: RgbaImage,
+  alignment: Pick<Alignment, "artworkToScan" | "localField">,
+  artwork: { width: number; height: number },
+  region: PxRegion = { x: 0, y: 0, w: artwork.width, h: artwork.height },
+): { image: RgbaImage; mask: Uint8Array } {
+  const { w, h } = region;
+  if (!(w > 0 && h > 0 && Number.isInteger(w) && Number.isInteger(h))) throw new RangeError("region must have a positive integer size");
+  const out = new Uint8Array(w * h * 4);
+  const mask = new Uint8Array(w * h);
+  const m = alignment.artworkToScan as Affine;
+  const field = alignment.localField;
+  const dx = field ? new Float64Array(w) : null, dy = field ? new Float64Array(w) : null;
+  const src = scan.data, sw = scan.width, sh = scan.height;
+  for (let row = 0; row < h; row++) {
+    const y = region.y + row;
+    if (field) fieldRow(field, region.x, y, dx!, dy!);
+    for (let col = 0; col < w; col++) {
+      let ax = region.x + col, ay = y;
+      if (field) {
+        ax += dx![col];
+        ay += dy![col];
+      }
+      const xs = m[0] * ax + m[1] * ay + m[2];
+      const ys = m[3] * ax + m[4] * ay + m[5];
+      if (!(xs >= -0.5 && ys >= -0.5 && xs <= sw - 0.5 && ys <= sh - 0.5)) continue;
+      const cx = Math.min(Math.max(xs, 0), sw - 1), cy = Math.min(Math.max(ys, 0), sh - 1);
+      const x0 = Math.min(Math.floor(cx), sw - 2 < 0 ? 0 : sw - 2), y0 = Math.min(Math.floor(cy), sh - 2 < 0 ? 0 : sh - 2);
+      const fx = sw > 1 ? cx - x0 : 0, fy = sh > 1 ? cy - y0 : 0;
+      const p00 = (y0 * sw + x0) * 4;
+      const p01 = sw > 1 ? p00 + 4 : p00;
+      const p10 = sh > 1 ? p00 + sw * 4 : p00;
+      const p11 = sw > 1 ? p10 + 4 : p10;
+      const w00 = (1 - fx) * (1 - fy), w01 = fx * (1 - fy), w10 = (1 - fx) * fy, w11 = fx * fy;
+      const o = (row * w + col) * 4;
+      out[o] = w00 * src[p00] + w01 * src[p01] + w10 * src[p10] + w11 * src[p11] + 0.5;
+      out[o + 1] = w00 * src[p00 + 1] + w01 * src[p01 + 1] + w10 * src[p10 + 1] + w11 * src[p11 + 1] + 0.5;
+      out[o + 2] = w00 * src[p00 + 2] + w01 * src[p01 + 2] + w10 * src[p10 + 2] + w11 * src[p11 + 2] + 0.5;
+      out[o + 3] = 255;
+      mask[row * w + col] = 1;
+    }
+  }
+  return { image: { width: w, height: h, data: out }, mask };
+}
+
+/** Displacements of one row of artwork pixels, bilinear between the field's nodes (held at the edges). */
+export function fieldRow(f: DisplacementField, x0: number, y: number, dx: Float64Array, dy: Float64Array) {
+  const gy = Math.min(Math.max((y - f.originY) / f.step, 0), f.rows - 1);
+  const j0 = Math.min(Math.floor(gy), Math.max(0, f.rows - 2)), ty = f.rows > 1 ? gy - j0 : 0;
+  const j1 = f.rows > 1 ? j0 + 1 : j0;
+  for (let i = 0; i < dx.length; i++) {
+    const gx = Math.min(Math.max((x0 + i - f.originX) / f.step, 0), f.cols - 1);
+    const i0 = Math.min(Math.floor(gx), Math.max(0, f.cols - 2)), tx = f.cols > 1 ? gx - i0 : 0;
+    const i1 = f.cols > 1 ? i0 + 1 : i0;
+    const a = j0 * f.cols + i0, b = j0 * f.cols + i1, c = j1 * f.cols + i0, d = j1 * f.cols + i1;
+    dx[i] = (1 - ty) * ((1 - tx) * f.dx[a] + tx * f.dx[b]) + ty * ((1 - tx) * f.dx[c] + tx * f.dx[d]);
+    dy[i] = (1 - ty) * ((1 - tx) * f.dy[a] + tx * f.dy[b]) + ty * ((1 - tx) * f.dy[c] + tx * f.dy[d]);
+  }
+}

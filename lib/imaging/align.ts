@@ -1,0 +1,176 @@
+// ALIGN: register a scan of a press sheet to its artwork raster, coarse to fine.
+//
+//  1. coarse placement (align-coarse.ts): whole-page correlation on ~15 000-pixel grey levels over the four
+//     quarter turns × ±6° — robust to repeated ups, where feature matching locks an up off;
+//  2. affine ECC (OpenCV findTransformECC, Evangelidis & Psarakis 2008) on that level and on one twice as
+//     fine. ECC is exact sub-pixel and its correlation refuses a wrong artwork, but costs ~80 ns per pixel
+//     and iteration in the WebAssembly build (1.3 s on 1000 × 1000), so it only runs on ~15 000- and
+//     ~60 000-pixel levels, cut to the part of the page the scan covers;
+//  3. patches at the comparison resolution (align-patches.ts): small windows spread over the covered area,
+//     each located to a fraction of a pixel, and a robust affine fit through them. This is where the last
+//     tenth of a millimetre comes from, at a few per cent of the cost of a full-resolution ECC;
+//  4. optionally a grid of local displacements on top of the affine for paper stretch.
+//
+// The scan's resolution may differ from the artwork's: it enters as the nominal scale, and the fitted scale
+// is reported relative to it (1 = the sheet is scanned at its true size).
+import { coveredRect, compose, invert, pxRectToMm, scaling, translate, type Affine } from "./align-affine";
+import { coarsePlacement } from "./align-coarse";
+import { refineOnPatches, type DisplacementField } from "./align-patches";
+import { loadOpenCv, openCvMessage, withMats, type OpenCv } from "./opencv";
+import { greyLevel, levelToFull, type GreyLevel } from "./pyramid";
+import { ImagingError, type Alignment, type ArtworkRaster, type RgbaImage, type ScanImage } from "./types";
+
+export { warpScanToArtwork } from "./align-warp";
+export type { DisplacementField };
+
+export interface AlignOptions {
+  /** Fit a grid of local displacements for paper stretch on top of the affine map. */
+  localRefinement?: boolean;
+}
+
+export interface AlignResult {
+  alignment: Alignment;
+  timingsMs: Record<string, number>;
+}
+
+/** Below this ECC correlation the scan is not of this artwork (measured: ≥ 0.9 right, ≤ 0.5 wrong). */
+const MIN_CORRELATION = 0.7;
+/** Grey-level standard deviation (0–255) under which the scan shows nothing printed. */
+const MIN_SCAN_CONTRAST = 2;
+/** Pixels of the coarse level (the rotation sweep, ~1 ms a candidate). */
+const COARSE_PIXELS = 4_000;
+/** ECC levels, as linear factors finer than the coarse level. */
+const ECC_LEVELS = [2, 4];
+/** Level pixels kept clear of the page edge in ECC. */
+const EDGE = 3;
+
+export async function alignScan(artwork: ArtworkRaster, scan: ScanImage, opts: AlignOptions = {}): Promise<AlignResult> {
+  checkImage(artwork, "artwork");
+  checkImage(scan, "scan");
+  const cv = await loadOpenCv();
+  const timings: Record<string, number> = {};
+  let t0 = performance.now();
+  const lap = (name: string) => {
+    const t = performance.now();
+    timings[name] = Math.round((t - t0) * 10) / 10;
+    t0 = t;
+  };
+
+  // Level sizes follow the smaller of page and scan, so a scan of a corner of a large sheet keeps detail.
+  const areaMm2 = Math.min(mm(artwork.width, artwork.dpi) * mm(artwork.height, artwork.dpi), mm(scan.width, scan.dpi) * mm(scan.height, scan.dpi));
+  const coarseMm = Math.min(8, Math.max(0.4, Math.sqrt(areaMm2 / COARSE_PIXELS)));
+  const kOf = (pixelMm: number, dpi: number) => Math.max(1, Math.round((pixelMm * dpi) / 25.4));
+
+  const artC = greyLevel(artwork, kOf(coarseMm, artwork.dpi), true);
+  const scanC = greyLevel(scan, kOf(coarseMm, scan.dpi));
+  if (std(scanC.data) < MIN_SCAN_CONTRAST) throw mismatch();
+  if (std(artC.data) < MIN_SCAN_CONTRAST) throw new ImagingError("artwork_blank", "the artwork has nothing printed to align the scan to");
+  lap("levels");
+
+  const ratio = scan.dpi / scanC.k / (artwork.dpi / artC.k);
+  const coarse = coarsePlacement(cv, artC, scanC, ratio);
+  let map = levelMapToFull(coarse.map, artC.k, scanC.k);
+  lap("coarse");
+
+  let rho = 0;
+  for (const f of ECC_LEVELS) {
+    const step = ecc(cv, greyLevel(artwork, kOf(coarseMm / f, artwork.dpi), true), greyLevel(scan, kOf(coarseMm / f, scan.dpi)), map, 30);
+    map = step.map;
+    rho = step.rho;
+  }
+  lap("ecc");
+  if (!(rho >= MIN_CORRELATION)) throw mismatch();
+
+  const refined = refineOnPatches(cv, artwork, scan, map, { localField: opts.localRefinement === true });
+  map = refined.map;
+  lap("patches");
+
+  return { alignment: describe(artwork, scan, map, rho, refined.residualPx, refined.field), timingsMs: timings };
+}
+
+function describe(artwork: ArtworkRaster, scan: ScanImage, map: Affine, rho: number, residualPx: number, field?: DisplacementField): Alignment {
+  const nominal = scan.dpi / artwork.dpi;
+  const det = map[0] * map[4] - map[1] * map[3];
+  const covered = coveredRect(map, artwork.width, artwork.height, scan.width, scan.height);
+  if (!covered) throw mismatch();
+  // Where the top-left corner of the page (pixel edge −0.5, −0.5) lands on the scan, in mm of the scan.
+  const cx = map[0] * -0.5 + map[1] * -0.5 + map[2] + 0.5;
+  const cy = map[3] * -0.5 + map[4] * -0.5 + map[5] + 0.5;
+  const alignment: Alignment = {
+    rotationDeg: round((Math.atan2(map[3], map[0]) * 180) / Math.PI, 1e4),
+    scale: round(Math.sqrt(Math.abs(det)) / nominal, 1e6),
+    txMm: round(mm(cx, scan.dpi), 1e4),
+    tyMm: round(mm(cy, scan.dpi), 1e4),
+    residualPx: round(residualPx, 1e3),
+    residualMm: round(mm(residualPx, artwork.dpi), 1e4),
+    correlation: round(rho, 1e4),
+    artworkToScan: map,
+    coveredMm: pxRectToMm(covered, artwork.dpi),
+  };
+  if (field) alignment.localField = field;
+  return alignment;
+}
+
+/**
+ * Affine ECC on one pair of levels, started from `map` (full resolution, artwork → scan). The artwork level is
+ * cut to the part the scan covers first: ECC's cost is per template pixel, and a partial scan of a large sheet
+ * would otherwise pay for the whole page.
+ */
+function ecc(cv: OpenCv, art: GreyLevel, scan: GreyLevel, map: Affine, iterations: number) {
+  const lm = compose(invert(levelToFull(scan.k)), compose(map, levelToFull(art.k)));
+  const cover = coveredRect(lm, art.width, art.height, scan.width, scan.height);
+  if (!cover) throw mismatch();
+  // Keep EDGE level pixels clear of the page's edges: there the scan shows the sheet's edge against the lid,
+  // which the artwork does not have, and ECC's smoothing would pull the fit towards it.
+  const x0 = Math.max(EDGE, Math.floor(cover.x)), y0 = Math.max(EDGE, Math.floor(cover.y));
+  const x1 = Math.min(art.width - EDGE, Math.ceil(cover.x + cover.w)), y1 = Math.min(art.height - EDGE, Math.ceil(cover.y + cover.h));
+  if (x1 - x0 < 8 || y1 - y0 < 8) throw mismatch();
+  const roi = compose(lm, translate(scaling(1), x0, y0));
+  return withMats((keep) => {
+    const full = keep(cv.matFromArray(art.height, art.width, cv.CV_32F, art.data));
+    const templ = keep(full.roi(new cv.Rect(x0, y0, x1 - x0, y1 - y0)));
+    const input = keep(cv.matFromArray(scan.height, scan.width, cv.CV_32F, scan.data));
+    const warp = keep(cv.matFromArray(2, 3, cv.CV_32F, roi));
+    const mask = keep(new cv.Mat());
+    const criteria = new cv.TermCriteria(cv.TermCriteria_COUNT + cv.TermCriteria_EPS, iterations, 1e-6);
+    let rho: number;
+    try {
+      rho = cv.findTransformECC(templ, input, warp, cv.MOTION_AFFINE, criteria, mask, 5);
+    } catch (e) {
+      // ECC gives up when the images do not correlate at all ("images may be uncorrelated").
+      if (/uncorrelated|non-overlapped|converge/i.test(openCvMessage(cv, e))) throw mismatch();
+      throw e;
+    }
+    const w = Array.from(warp.data32F as Float32Array) as Affine;
+    const levelMap = compose(w, translate(scaling(1), -x0, -y0));
+    return { map: levelMapToFull(levelMap, art.k, scan.k), rho };
+  });
+}
+
+function levelMapToFull(m: Affine, kArt: number, kScan: number): Affine {
+  return compose(levelToFull(kScan), compose(m, invert(levelToFull(kArt))));
+}
+
+export function mismatch(): ImagingError {
+  return new ImagingError("scan_mismatch", "the scan does not match this artwork");
+}
+
+function checkImage(img: RgbaImage & { dpi: number }, what: string) {
+  if (!(img.width > 0 && img.height > 0 && img.data.length === img.width * img.height * 4)) {
+    throw new ImagingError("bad_image", `the ${what} image is empty or its pixel data does not match its size`);
+  }
+  if (!(img.dpi > 0)) throw new ImagingError("bad_image", `the ${what} image has no resolution`);
+}
+
+function std(a: Float32Array): number {
+  let s = 0, s2 = 0;
+  for (let i = 0; i < a.length; i++) {
+    s += a[i];
+    s2 += a[i] * a[i];
+  }
+  const m = s / a.length;
+  return Math.sqrt(Math.max(0, s2 / a.length - m * m));
+}
+
+const mm = (px: number, dpi: number) => (px * 25.4) / dpi;
+const round = (v: number, f: number) => Math.round(v * f) / f;

@@ -1,0 +1,60 @@
+// Small grey copies of a page for registration. A level is the luma of the RGBA image averaged over k × k
+// blocks of full-resolution pixels (a box filter: what a lower-resolution scanner would integrate), so
+// level pixel (i, j) is centred on full pixel (k·i + (k−1)/2, k·j + (k−1)/2). Integer factors keep that map
+// exact; the registration absorbs any remaining resolution ratio in its scale. Done in plain JavaScript in
+// one pass over rows so that a 100-megapixel sheet never has to be copied whole into the OpenCV heap.
+import type { Affine } from "./align-affine";
+import type { RgbaImage } from "./types";
+
+export interface GreyLevel {
+  width: number;
+  height: number;
+  /** Luma 0–255 (ITU-R BT.601 weights on the sRGB values, as OpenCV's RGB→grey conversion). */
+  data: Float32Array;
+  /** Block size in full-resolution pixels. */
+  k: number;
+}
+
+const cache = new WeakMap<object, Map<number, GreyLevel>>();
+
+/** The level of block size k; cached per image buffer, so an artwork used for many scans is reduced once. */
+export function greyLevel(img: RgbaImage, k: number, cacheIt = false): GreyLevel {
+  let levels = cacheIt ? cache.get(img.data) : undefined;
+  const hit = levels?.get(k);
+  if (hit) return hit;
+  const level = reduce(img, k);
+  if (cacheIt) {
+    if (!levels) cache.set(img.data, (levels = new Map()));
+    levels.set(k, level);
+  }
+  return level;
+}
+
+/** Level pixel → full-resolution pixel (pixel centres at integer coordinates). */
+export function levelToFull(k: number): Affine {
+  const o = (k - 1) / 2;
+  return [k, 0, o, 0, k, o];
+}
+
+function reduce(img: RgbaImage, k: number): GreyLevel {
+  const k1 = Math.max(1, Math.floor(k));
+  const w = Math.max(1, Math.floor(img.width / k1));
+  const h = Math.max(1, Math.floor(img.height / k1));
+  const out = new Float32Array(w * h);
+  const src = img.data;
+  const norm = 1 / (k1 * k1);
+  const rowSum = new Float32Array(w);
+  for (let j = 0; j < h; j++) {
+    rowSum.fill(0);
+    for (let dy = 0; dy < k1; dy++) {
+      let p = (j * k1 + dy) * img.width * 4;
+      for (let i = 0; i < w; i++) {
+        let s = 0;
+        for (let dx = 0; dx < k1; dx++, p += 4) s += 0.299 * src[p] + 0.587 * src[p + 1] + 0.114 * src[p + 2];
+        rowSum[i] += s;
+      }
+    }
+    for (let i = 0; i < w; i++) out[j * w + i] = rowSum[i] * norm;
+  }
+  return { width: w, height: h, data: out, k: k1 };
+}
