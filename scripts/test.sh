@@ -17,6 +17,7 @@ export MAILDEV_WEB_PORT=1090
 export APP_URL="http://127.0.0.1:3010"
 export NEXTAUTH_URL="$APP_URL"
 export NEXT_DIST_DIR=".next-test"
+export TYMPAN_BUILD_SKIP_TYPECHECK=1
 export TYMPAN_WITH_CHROMIUM=1
 export TYMPAN_TEST=1
 
