@@ -6,7 +6,7 @@ const tones = {
 
 export function Notice({ tone, children }: { tone: keyof typeof tones; children: React.ReactNode }) {
   return (
-    <div role={tone === "error" ? "alert" : "status"} className={`rounded-md border px-3 py-2 text-sm ${tones[tone]}`}>
+    <div role={tone === "error" ? "alert" : "status"} className={`break-words rounded-md border px-3 py-2 text-sm ${tones[tone]}`}>
       {children}
     </div>
   );
