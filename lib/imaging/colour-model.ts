@@ -1,0 +1,269 @@
+// The colour model of one sheet: scan RGB → artwork RGB, as a 33³ lookup table with trilinear interpolation.
+// Built from three parts, each fitted on flat-area samples:
+// 1. tone curves per channel, from near-neutral samples only (paper, greys, black): there one channel's value
+//    fixes the tone, and monotone curves are safe. Fitted on saturated colours, per-channel curves contradict
+//    each other (a magenta's green and a black's green) and leave ΔE 5–10 — the lesson of a first trial;
+// 2. a smooth second-order polynomial across channels, fitted with every artwork colour weighing the same;
+// 3. a local correction at each artwork colour present on the sheet, spread by a Gaussian kernel in scan RGB
+//    and fading to nothing away from the sheet's colours. The colours are grouped by ARTWORK colour and each
+//    group takes the median of its scan values, so a defect covering a minority of a colour (a shifted patch
+//    in a solid) cannot teach the model to hide it.
+import type { SamplePairs } from "./samples";
+
+export const LUT_SIZE = 33;
+const STEP = 255 / (LUT_SIZE - 1);
+const FEATURES = 10;
+/** Kernel width of the local corrections, 8-bit scan levels; and the weight left to "no local correction". */
+const KERNEL_SIGMA = 10;
+const KERNEL_FLOOR = 0.02;
+const REFINE_ROUNDS = 3;
+const MIN_GROUP = 6;
+
+export interface ColourModel {
+  /** LUT_SIZE³ × 3 output values (0–255), red index slowest. */
+  lut: Float32Array;
+}
+
+export function identityModel(): ColourModel {
+  const lut = new Float32Array(LUT_SIZE ** 3 * 3);
+  for (let r = 0, o = 0; r < LUT_SIZE; r++)
+    for (let g = 0; g < LUT_SIZE; g++)
+      for (let b = 0; b < LUT_SIZE; b++, o += 3) { lut[o] = r * STEP; lut[o + 1] = g * STEP; lut[o + 2] = b * STEP; }
+  return { lut };
+}
+
+/** Applies the model to RGBA pixels in place (alpha untouched), trilinear in the table. Allocation-free. */
+export function applyColourModel(model: ColourModel, rgba: Uint8Array): void {
+  const lut = model.lut;
+  const s = (LUT_SIZE - 1) / 255;
+  const sg = LUT_SIZE * 3, sr = LUT_SIZE * LUT_SIZE * 3;
+  for (let i = 0; i < rgba.length; i += 4) {
+    const fr = rgba[i] * s, fg = rgba[i + 1] * s, fb = rgba[i + 2] * s;
+    let ir = fr | 0, ig = fg | 0, ib = fb | 0;
+    if (ir > LUT_SIZE - 2) ir = LUT_SIZE - 2;
+    if (ig > LUT_SIZE - 2) ig = LUT_SIZE - 2;
+    if (ib > LUT_SIZE - 2) ib = LUT_SIZE - 2;
+    const dr = fr - ir, dg = fg - ig, db = fb - ib;
+    const o = ir * sr + ig * sg + ib * 3;
+    for (let c = 0; c < 3; c++) {
+      const p = o + c;
+      const c00 = lut[p] + (lut[p + 3] - lut[p]) * db;
+      const c01 = lut[p + sg] + (lut[p + sg + 3] - lut[p + sg]) * db;
+      const c10 = lut[p + sr] + (lut[p + sr + 3] - lut[p + sr]) * db;
+      const c11 = lut[p + sr + sg] + (lut[p + sr + sg + 3] - lut[p + sr + sg]) * db;
+      const c0 = c00 + (c01 - c00) * dg, c1 = c10 + (c11 - c10) * dg;
+      const v = c0 + (c1 - c0) * dr;
+      rgba[i + c] = v <= 0 ? 0 : v >= 255 ? 255 : (v + 0.5) | 0;
+    }
+  }
+}
+
+/** The model's output for one scan colour (0–255 floats). */
+export function evaluateModel(model: ColourModel, r: number, g: number, b: number): [number, number, number] {
+  const px = new Uint8Array([Math.round(r), Math.round(g), Math.round(b), 255]);
+  applyColourModel(model, px);
+  return [px[0], px[1], px[2]];
+}
+
+export function fitColourModel(pairs: SamplePairs): ColourModel {
+  const groups = groupByArtwork(pairs);
+  const curves = [0, 1, 2].map((c) => fitToneCurve(groups, pairs, c));
+  const curved = (r: number, g: number, b: number) => [interp(curves[0], r), interp(curves[1], g), interp(curves[2], b)];
+  const points = groups.map((gr) => ({ x: curved(gr.scan[0], gr.scan[1], gr.scan[2]).map((v) => v / 255), y: gr.art.map((v) => v / 255) }));
+  const beta = fitPolynomial(points);
+  const base = (r: number, g: number, b: number): number[] => {
+    const x = curved(r, g, b).map((v) => v / 255);
+    const phi = features(x[0], x[1], x[2]);
+    return [0, 1, 2].map((c) => {
+      let v = x[c];
+      for (let j = 0; j < FEATURES; j++) v += beta[c * FEATURES + j] * phi[j];
+      return v * 255;
+    });
+  };
+  const lut = new Float32Array(LUT_SIZE ** 3 * 3);
+  for (let r = 0, o = 0; r < LUT_SIZE; r++)
+    for (let g = 0; g < LUT_SIZE; g++)
+      for (let b = 0; b < LUT_SIZE; b++, o += 3) lut.set(base(r * STEP, g * STEP, b * STEP), o);
+  // Local corrections: what the table still gets wrong at each artwork colour, spread around its scan colour;
+  // a few rounds, since neighbouring colours' kernels overlap.
+  const reach = Math.ceil((3 * KERNEL_SIGMA) / STEP);
+  for (let round = 0; round < REFINE_ROUNDS; round++) {
+    const num = new Float64Array(LUT_SIZE ** 3 * 3);
+    const den = new Float64Array(LUT_SIZE ** 3);
+    for (const gr of groups) {
+      const predicted = interpolate(lut, gr.scan[0], gr.scan[1], gr.scan[2]);
+      const res = [0, 1, 2].map((c) => gr.art[c] - predicted[c]);
+      const ci = gr.scan.map((v) => Math.round(v / STEP));
+      for (let r = Math.max(0, ci[0] - reach); r <= Math.min(LUT_SIZE - 1, ci[0] + reach); r++)
+        for (let g = Math.max(0, ci[1] - reach); g <= Math.min(LUT_SIZE - 1, ci[1] + reach); g++)
+          for (let b = Math.max(0, ci[2] - reach); b <= Math.min(LUT_SIZE - 1, ci[2] + reach); b++) {
+            const d2 = (r * STEP - gr.scan[0]) ** 2 + (g * STEP - gr.scan[1]) ** 2 + (b * STEP - gr.scan[2]) ** 2;
+            const w = Math.exp(-d2 / (2 * KERNEL_SIGMA * KERNEL_SIGMA));
+            if (w < 1e-4) continue;
+            const n = (r * LUT_SIZE + g) * LUT_SIZE + b;
+            den[n] += w;
+            for (let c = 0; c < 3; c++) num[n * 3 + c] += w * res[c];
+          }
+    }
+    for (let n = 0; n < den.length; n++) {
+      if (den[n] === 0) continue;
+      for (let c = 0; c < 3; c++) lut[n * 3 + c] += num[n * 3 + c] / (den[n] + KERNEL_FLOOR);
+    }
+  }
+  for (let i = 0; i < lut.length; i++) lut[i] = Math.min(255, Math.max(0, lut[i]));
+  return { lut };
+}
+
+interface ColourGroup {
+  art: number[];
+  scan: number[];
+  count: number;
+}
+
+/** Flat samples grouped by artwork colour (6 bits a channel); each group's scan colour is its median. */
+function groupByArtwork(pairs: SamplePairs): ColourGroup[] {
+  const members = new Map<number, number[]>();
+  for (let i = 0; i < pairs.flatCount; i++) {
+    const a = pairs.flatArt;
+    const key = ((a[i * 3] >> 2) << 12) | ((a[i * 3 + 1] >> 2) << 6) | (a[i * 3 + 2] >> 2);
+    let list = members.get(key);
+    if (!list) members.set(key, (list = []));
+    list.push(i);
+  }
+  const groups: ColourGroup[] = [];
+  for (const list of members.values()) {
+    if (list.length < MIN_GROUP) continue;
+    const median = (arr: Float32Array, c: number) => {
+      const v = list.map((i) => arr[i * 3 + c]).sort((x, y) => x - y);
+      return v[v.length >> 1];
+    };
+    groups.push({ art: [0, 1, 2].map((c) => median(pairs.flatArt, c)), scan: [0, 1, 2].map((c) => median(pairs.flatScan, c)), count: list.length });
+  }
+  return groups;
+}
+
+/** Trilinear value of the table at a scan colour (0–255 floats), unclamped. */
+function interpolate(lut: Float32Array, r: number, g: number, b: number): number[] {
+  const f = [r, g, b].map((v) => Math.min(LUT_SIZE - 1.000001, Math.max(0, v / STEP)));
+  const i = f.map((v) => Math.min(LUT_SIZE - 2, Math.floor(v)));
+  const d = f.map((v, k) => v - i[k]);
+  const out = [0, 0, 0];
+  for (let corner = 0; corner < 8; corner++) {
+    const cr = corner >> 2, cg = (corner >> 1) & 1, cb = corner & 1;
+    const w = (cr ? d[0] : 1 - d[0]) * (cg ? d[1] : 1 - d[1]) * (cb ? d[2] : 1 - d[2]);
+    const o = (((i[0] + cr) * LUT_SIZE + i[1] + cg) * LUT_SIZE + i[2] + cb) * 3;
+    for (let c = 0; c < 3; c++) out[c] += w * lut[o + c];
+  }
+  return out;
+}
+
+function interp(curve: Float32Array, v: number): number {
+  const i = Math.min(254, Math.max(0, Math.floor(v)));
+  const f = Math.min(1, Math.max(0, v - i));
+  return curve[i] + (curve[i + 1] - curve[i]) * f;
+}
+
+function features(r: number, g: number, b: number): number[] {
+  return [1, r, g, b, r * r, g * g, b * b, r * g, r * b, g * b];
+}
+
+/**
+ * Tone curve of one channel (0–255 → 0–255) through the near-neutral colour groups (paper, greys, black):
+ * each group's median scan value → its artwork value, made monotone (pool adjacent violators, weighted by
+ * group size). Beyond their range it is anchored at the 0.2 and 99.8 percentiles of the whole covered area
+ * (thin black text is never flat) and continued with slope 1. Medians keep stray marks out of the curve.
+ */
+function fitToneCurve(groups: ColourGroup[], pairs: SamplePairs, c: number): Float32Array {
+  const points: { x: number; y: number; w: number }[] = [];
+  for (const g of groups) {
+    if (Math.max(...g.art) - Math.min(...g.art) > 12) continue;
+    points.push({ x: g.scan[c], y: g.art[c], w: g.count });
+  }
+  const total = points.reduce((t, p) => t + p.w, 0);
+  const flatLo = Math.min(256, ...points.map((p) => p.x)), flatHi = Math.max(-1, ...points.map((p) => p.x));
+  const [scanLo, scanHi] = percentiles(pairs.allScan, c, pairs.allCount);
+  const [artLo, artHi] = percentiles(pairs.allArt, c, pairs.allCount);
+  const anchorWeight = Math.max(1, total * 0.002);
+  if (scanLo < flatLo - 8) points.push({ x: scanLo, y: artLo, w: anchorWeight });
+  if (scanHi > flatHi + 8) points.push({ x: scanHi, y: artHi, w: anchorWeight });
+  points.sort((p, q) => p.x - q.x);
+  const xs: number[] = [], ys: number[] = [], ws: number[] = [];
+  for (const p of points) {
+    xs.push(p.x); ys.push(p.y); ws.push(p.w);
+    while (ys.length > 1 && ys[ys.length - 2] > ys[ys.length - 1]) {
+      const w = ws[ws.length - 2] + ws[ws.length - 1];
+      const y = (ys[ys.length - 2] * ws[ws.length - 2] + ys[ys.length - 1] * ws[ws.length - 1]) / w;
+      const x = (xs[xs.length - 2] * ws[ws.length - 2] + xs[xs.length - 1] * ws[ws.length - 1]) / w;
+      xs.splice(-2, 2, x); ys.splice(-2, 2, y); ws.splice(-2, 2, w);
+    }
+  }
+  const curve = new Float32Array(256);
+  for (let s = 0; s < 256; s++) {
+    let v = s;
+    if (xs.length === 0) v = s;
+    else if (s <= xs[0]) v = ys[0] - (xs[0] - s);
+    else if (s >= xs[xs.length - 1]) v = ys[ys.length - 1] + (s - xs[xs.length - 1]);
+    else {
+      let j = 1;
+      while (xs[j] < s) j++;
+      v = ys[j - 1] + ((ys[j] - ys[j - 1]) * (s - xs[j - 1])) / Math.max(1e-6, xs[j] - xs[j - 1]);
+    }
+    curve[s] = Math.min(255, Math.max(0, v));
+  }
+  return curve;
+}
+
+function percentiles(values: Float32Array, c: number, n: number): [number, number] {
+  if (n === 0) return [0, 255];
+  const v = new Float32Array(n);
+  for (let i = 0; i < n; i++) v[i] = values[i * 3 + c];
+  v.sort();
+  return [v[Math.floor(n * 0.002)], v[Math.min(n - 1, Math.floor(n * 0.998))]];
+}
+
+/**
+ * Second-order polynomial correction (10 terms a channel) by least squares over the colour groups, each
+ * weighing the same, with neutral anchor points (grey stays grey) and a ridge towards "no correction".
+ */
+function fitPolynomial(points: { x: number[]; y: number[] }[]): Float64Array {
+  const ata = new Float64Array(FEATURES * FEATURES);
+  const atb = new Float64Array(FEATURES * 3);
+  const add = (x: number[], y: number[], w: number) => {
+    const phi = features(x[0], x[1], x[2]);
+    for (let j = 0; j < FEATURES; j++) {
+      for (let k = 0; k < FEATURES; k++) ata[j * FEATURES + k] += w * phi[j] * phi[k];
+      for (let c = 0; c < 3; c++) atb[c * FEATURES + j] += w * phi[j] * (y[c] - x[c]);
+    }
+  };
+  for (const p of points) add(p.x, p.y, 1);
+  for (let v = 0; v <= 1.0001; v += 0.125) add([v, v, v], [v, v, v], 0.2);
+  for (let j = 0; j < FEATURES; j++) ata[j * FEATURES + j] += 0.05;
+  const beta = new Float64Array(FEATURES * 3);
+  for (let c = 0; c < 3; c++) beta.set(solve(ata, atb.subarray(c * FEATURES, (c + 1) * FEATURES), FEATURES), c * FEATURES);
+  return beta;
+}
+
+/** Solves A·x = b (n × n) by Gaussian elimination with partial pivoting. */
+function solve(aIn: Float64Array, bIn: Float64Array, n: number): Float64Array {
+  const a = Float64Array.from(aIn), b = Float64Array.from(bIn);
+  for (let col = 0; col < n; col++) {
+    let pivot = col;
+    for (let r = col + 1; r < n; r++) if (Math.abs(a[r * n + col]) > Math.abs(a[pivot * n + col])) pivot = r;
+    for (let k = 0; k < n; k++) [a[col * n + k], a[pivot * n + k]] = [a[pivot * n + k], a[col * n + k]];
+    [b[col], b[pivot]] = [b[pivot], b[col]];
+    const d = a[col * n + col];
+    if (Math.abs(d) < 1e-12) continue;
+    for (let r = col + 1; r < n; r++) {
+      const f = a[r * n + col] / d;
+      for (let k = col; k < n; k++) a[r * n + k] -= f * a[col * n + k];
+      b[r] -= f * b[col];
+    }
+  }
+  const x = new Float64Array(n);
+  for (let r = n - 1; r >= 0; r--) {
+    let s = b[r];
+    for (let k = r + 1; k < n; k++) s -= a[r * n + k] * x[k];
+    x[r] = Math.abs(a[r * n + r]) < 1e-12 ? 0 : s / a[r * n + r];
+  }
+  return x;
+}

@@ -1,0 +1,209 @@
+// FINDINGS: connected regions of flagged pixels, labelled on runs (one run = a stretch of flagged pixels in a
+// row) so that bands of any height join up without a full-size label image; then the second level of the
+// two-level flagging (a region stays only if its peak reaches the profile's ΔE00), merging of nearby blobs,
+// the minimum area, and the up each region lies in.
+import { PIXEL_COLOUR_SHIFT, PIXEL_EXTRA_INK, PIXEL_MISSING_INK, type BandDifference } from "./compare";
+import { pxToMm } from "./raster";
+import type { Finding, FindingKind, RectMm, UpsLayout } from "./types";
+
+/** A connected region in artwork pixels; x1, y1 exclusive. */
+export interface Region {
+  x0: number;
+  y0: number;
+  x1: number;
+  y1: number;
+  count: number;
+  sumDeltaE: number;
+  maxDeltaE: number;
+  /** Highest score (ΔE00 less the edge allowance): the second flagging level tests this. */
+  maxScore: number;
+  /** ΔE-weighted votes for extra ink, missing ink, colour shift. */
+  votes: [number, number, number];
+}
+
+/** Labels flagged pixels band after band (rows in page order), 8-connected. */
+export class RegionCollector {
+  private runX0: number[] = [];
+  private runX1: number[] = [];
+  private runY: number[] = [];
+  private runSum: number[] = [];
+  private runMax: number[] = [];
+  private runScore: number[] = [];
+  private runVotes: number[] = [];
+  private parent: number[] = [];
+  private prevStart = 0;
+  private prevEnd = 0;
+  private lastRow = -2;
+
+  constructor(private readonly width: number) {}
+
+  get runCount(): number {
+    return this.runY.length;
+  }
+
+  /** Adds the core rows of one band; `pageY` is the page row of its first core row, `pageX` its first column. */
+  addBand(diff: BandDifference, rows: number, pageY: number, pageX = 0, bandWidth = this.width): void {
+    const { deltaE, kind, score } = diff;
+    for (let row = 0; row < rows; row++) {
+      const y = pageY + row;
+      if (y !== this.lastRow + 1) this.prevStart = this.prevEnd = this.runY.length;
+      const rowStart = this.runY.length;
+      const base = row * bandWidth;
+      let x = 0;
+      while (x < bandWidth) {
+        if (deltaE[base + x] === 0) { x++; continue; }
+        const start = x;
+        let sum = 0, max = 0, top = 0, v1 = 0, v2 = 0, v3 = 0;
+        while (x < bandWidth && deltaE[base + x] !== 0) {
+          const e = deltaE[base + x];
+          if (score[base + x] > top) top = score[base + x];
+          sum += e;
+          if (e > max) max = e;
+          const k = kind[base + x];
+          if (k === PIXEL_EXTRA_INK) v1 += e;
+          else if (k === PIXEL_MISSING_INK) v2 += e;
+          else if (k === PIXEL_COLOUR_SHIFT) v3 += e;
+          x++;
+        }
+        const id = this.runY.length;
+        this.runX0.push(pageX + start); this.runX1.push(pageX + x); this.runY.push(y);
+        this.runSum.push(sum); this.runMax.push(max); this.runScore.push(top); this.runVotes.push(v1, v2, v3);
+        this.parent.push(id);
+      }
+      this.joinRows(this.prevStart, this.prevEnd, rowStart, this.runY.length);
+      this.prevStart = rowStart;
+      this.prevEnd = this.runY.length;
+      this.lastRow = y;
+    }
+  }
+
+  /** Runs of consecutive rows touch when their column ranges overlap or meet diagonally. */
+  private joinRows(aStart: number, aEnd: number, bStart: number, bEnd: number): void {
+    let a = aStart;
+    for (let b = bStart; b < bEnd; b++) {
+      while (a < aEnd && this.runX1[a] < this.runX0[b]) a++;
+      for (let k = a; k < aEnd && this.runX0[k] <= this.runX1[b]; k++) this.union(k, b);
+    }
+  }
+
+  private find(i: number): number {
+    while (this.parent[i] !== i) {
+      this.parent[i] = this.parent[this.parent[i]];
+      i = this.parent[i];
+    }
+    return i;
+  }
+
+  private union(a: number, b: number): void {
+    const ra = this.find(a), rb = this.find(b);
+    if (ra !== rb) this.parent[Math.max(ra, rb)] = Math.min(ra, rb);
+  }
+
+  regions(): Region[] {
+    const byRoot = new Map<number, Region>();
+    for (let i = 0; i < this.runY.length; i++) {
+      const root = this.find(i);
+      let r = byRoot.get(root);
+      if (!r) {
+        r = { x0: Infinity, y0: Infinity, x1: -Infinity, y1: -Infinity, count: 0, sumDeltaE: 0, maxDeltaE: 0, maxScore: 0, votes: [0, 0, 0] };
+        byRoot.set(root, r);
+      }
+      r.x0 = Math.min(r.x0, this.runX0[i]); r.x1 = Math.max(r.x1, this.runX1[i]);
+      r.y0 = Math.min(r.y0, this.runY[i]); r.y1 = Math.max(r.y1, this.runY[i] + 1);
+      r.count += this.runX1[i] - this.runX0[i];
+      r.sumDeltaE += this.runSum[i];
+      r.maxDeltaE = Math.max(r.maxDeltaE, this.runMax[i]);
+      r.maxScore = Math.max(r.maxScore, this.runScore[i]);
+      for (let k = 0; k < 3; k++) r.votes[k] += this.runVotes[i * 3 + k];
+    }
+    return [...byRoot.values()];
+  }
+}
+
+export interface FindingRules {
+  dpi: number;
+  /** Second level: a region's peak ΔE00 must reach this. */
+  peakDeltaE00: number;
+  /** Smallest area kept, mm². */
+  minAreaMm2: number;
+  /** Regions whose boxes lie within this distance are one finding, mm. */
+  mergeMm: number;
+  ups?: UpsLayout;
+  pageMm: { widthMm: number; heightMm: number };
+}
+
+/** Regions → findings (without crops), largest first. */
+export function regionsToFindings(regions: Region[], rules: FindingRules): { findings: Finding[]; kept: Region[] } {
+  const strong = regions.filter((r) => r.maxScore >= rules.peakDeltaE00);
+  const merged = mergeNearby(strong, (rules.mergeMm * rules.dpi) / 25.4);
+  const pxArea = (25.4 / rules.dpi) ** 2;
+  const kept = merged.filter((r) => r.count * pxArea >= rules.minAreaMm2).sort((a, b) => b.count - a.count);
+  const findings = kept.map((r): Finding => {
+    const box: RectMm = {
+      x: pxToMm(r.x0, rules.dpi),
+      y: pxToMm(r.y0, rules.dpi),
+      w: pxToMm(r.x1 - r.x0, rules.dpi),
+      h: pxToMm(r.y1 - r.y0, rules.dpi),
+    };
+    return {
+      xMm: round3(box.x),
+      yMm: round3(box.y),
+      wMm: round3(box.w),
+      hMm: round3(box.h),
+      areaMm2: round3(r.count * pxArea),
+      kind: kindOf(r.votes),
+      deltaE00Mean: round2(r.sumDeltaE / r.count),
+      deltaE00Max: round2(r.maxDeltaE),
+      up: upOf(box, rules.ups, rules.pageMm),
+    };
+  });
+  return { findings, kept };
+}
+
+function kindOf(votes: [number, number, number]): FindingKind {
+  const [extra, missing, shift] = votes;
+  if (shift > extra && shift > missing) return "colour_shift";
+  return extra >= missing ? "extra_ink" : "missing_ink";
+}
+
+/** Merges regions whose boxes come within `gapPx` of each other, until none do. */
+function mergeNearby(regions: Region[], gapPx: number): Region[] {
+  const out = regions.map((r) => ({ ...r, votes: [...r.votes] as [number, number, number] }));
+  let changed = true;
+  while (changed) {
+    changed = false;
+    for (let i = 0; i < out.length; i++) {
+      for (let j = i + 1; j < out.length; j++) {
+        const a = out[i], b = out[j];
+        if (a.x0 - gapPx > b.x1 || b.x0 - gapPx > a.x1 || a.y0 - gapPx > b.y1 || b.y0 - gapPx > a.y1) continue;
+        a.x0 = Math.min(a.x0, b.x0); a.y0 = Math.min(a.y0, b.y0);
+        a.x1 = Math.max(a.x1, b.x1); a.y1 = Math.max(a.y1, b.y1);
+        a.count += b.count; a.sumDeltaE += b.sumDeltaE; a.maxDeltaE = Math.max(a.maxDeltaE, b.maxDeltaE); a.maxScore = Math.max(a.maxScore, b.maxScore);
+        for (let k = 0; k < 3; k++) a.votes[k] += b.votes[k];
+        out.splice(j, 1);
+        j--;
+        changed = true;
+      }
+    }
+  }
+  return out;
+}
+
+/** 1-based row-major up containing the box centre; null outside the ups' area or without a layout. */
+export function upOf(box: RectMm, ups: UpsLayout | undefined, page: { widthMm: number; heightMm: number }): number | null {
+  if (!ups || ups.rows < 1 || ups.columns < 1) return null;
+  const area = ups.areaMm ?? { x: 0, y: 0, w: page.widthMm, h: page.heightMm };
+  const cx = box.x + box.w / 2, cy = box.y + box.h / 2;
+  if (cx < area.x || cy < area.y || cx >= area.x + area.w || cy >= area.y + area.h) return null;
+  const col = Math.min(ups.columns - 1, Math.floor(((cx - area.x) / area.w) * ups.columns));
+  const row = Math.min(ups.rows - 1, Math.floor(((cy - area.y) / area.h) * ups.rows));
+  return row * ups.columns + col + 1;
+}
+
+function round2(v: number): number {
+  return Math.round(v * 100) / 100;
+}
+
+function round3(v: number): number {
+  return Math.round(v * 1000) / 1000;
+}

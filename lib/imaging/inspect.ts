@@ -1,0 +1,149 @@
+// The inspection of one press sheet: align → normalise → compare → findings. The CLI and the worker call
+// exactly this. Pure: typed arrays in, plain objects out; safe inside a worker thread (no shared state).
+import { affineScanSource } from "./aligned-scan";
+import { haloPx, processRect, type SheetContext } from "./bands";
+import { CompareScratch } from "./compare";
+import { makeCrops } from "./crops";
+import { RegionCollector, regionsToFindings } from "./findings";
+import { fitNormalisation, lowPassSigmaPx } from "./normalise";
+import { validateProfile } from "./profiles";
+import { mmToPx, rectMmToPx, rectMmToPxInside } from "./raster";
+import {
+  ImagingError,
+  type Alignment,
+  type ArtworkRaster,
+  type InspectionProgress,
+  type InspectionResult,
+  type RgbaImage,
+  type ScanImage,
+  type ToleranceProfile,
+  type UpsLayout,
+} from "./types";
+
+export interface InspectSheetInput {
+  artwork: ArtworkRaster;
+  scan: ScanImage;
+  profile: ToleranceProfile;
+  ups?: UpsLayout;
+  /** Attach PNG crops to each finding. */
+  crops?: boolean;
+  onProgress?: (p: InspectionProgress) => void;
+  /** An alignment already known (a pre-aligned scan, or one computed earlier); skips the align stage. */
+  alignment?: Alignment;
+}
+
+/** Band height: about this many pixels a band keeps the working set small on any sheet size. */
+const BAND_PIXELS = 1 << 21;
+/** Findings with crops attached at most; the rest still carry their boxes and figures. */
+const MAX_CROPPED_FINDINGS = 100;
+
+export async function inspectSheet(input: InspectSheetInput): Promise<InspectionResult> {
+  const { artwork, scan, ups, onProgress } = input;
+  checkImage("artwork", artwork);
+  checkImage("scan", scan);
+  const profile = validateProfile(input.profile);
+  const timings: Record<string, number> = { align: 0, normalise: 0, compare: 0, findings: 0 };
+  const progress = (stage: InspectionProgress["stage"], percent: number) =>
+    onProgress?.({ stage, percent: Math.round(Math.min(100, Math.max(0, percent))) });
+
+  progress("align", 0);
+  let started = performance.now();
+  const alignment = input.alignment ?? (await alignSheet(artwork, scan));
+  timings.align = performance.now() - started;
+  progress("normalise", 15);
+
+  const dpi = artwork.dpi;
+  const sigmaPx = lowPassSigmaPx(dpi);
+  const radiusPx = Math.max(1, Math.ceil(mmToPx(profile.registrationToleranceMm, dpi) - 0.25));
+  const peak = profile.deltaE00Threshold;
+  const inspectPx = rectMmToPxInside(alignment.coveredMm, dpi, artwork.width, artwork.height);
+  started = performance.now();
+  const fit = fitNormalisation(artwork, scan, alignment.artworkToScan, inspectPx, Math.ceil(2.5 * sigmaPx) + radiusPx);
+  timings.normalise += performance.now() - started;
+  if (process.env.TYMPAN_DEBUG) console.log("fit", fit.driftDeltaE00, fit.residualDeltaE00, fit.flatSamples);
+
+  const stageTimes = { normalise: 0, compare: 0 };
+  const ctx: SheetContext = {
+    artwork,
+    source: affineScanSource(scan, alignment.artworkToScan),
+    model: fit.model,
+    sigmaPx,
+    radiusPx,
+    lowDeltaE00: Math.max(1, 0.5 * peak),
+    inspectPx,
+    excludedPx: profile.excludedAreasMm.map((r) => rectMmToPx(r, dpi, artwork.width, artwork.height)),
+    scratch: new CompareScratch(),
+    timings: stageTimes,
+  };
+  const collector = new RegionCollector(artwork.width);
+  const bandRows = Math.max(64, Math.floor(BAND_PIXELS / artwork.width), haloPx(ctx) * 4);
+  const yEnd = inspectPx.y + inspectPx.h;
+  for (let y = inspectPx.y; y < yEnd; y += bandRows) {
+    const rows = Math.min(bandRows, yEnd - y);
+    const diff = await processRect(ctx, { x: 0, y, w: artwork.width, h: rows });
+    started = performance.now();
+    collector.addBand(diff, rows, y);
+    timings.findings += performance.now() - started;
+    progress("compare", 20 + (70 * (y + rows - inspectPx.y)) / Math.max(1, inspectPx.h));
+  }
+  timings.normalise += stageTimes.normalise;
+  timings.compare += stageTimes.compare;
+
+  progress("findings", 90);
+  started = performance.now();
+  const { findings } = regionsToFindings(collector.regions(), {
+    dpi,
+    peakDeltaE00: peak,
+    minAreaMm2: 0.5 * (Math.PI / 4) * profile.minDefectMm ** 2,
+    mergeMm: Math.max(0.6, 2 * profile.minDefectMm),
+    ups,
+    pageMm: { widthMm: artwork.widthMm, heightMm: artwork.heightMm },
+  });
+  if (input.crops) {
+    for (const f of findings.slice(0, MAX_CROPPED_FINDINGS)) f.crops = await makeCrops(ctx, f, dpi, peak);
+  }
+  timings.findings += performance.now() - started;
+  progress("findings", 100);
+  for (const k of Object.keys(timings)) timings[k] = Math.round(timings[k] * 10) / 10;
+  return {
+    alignment,
+    coveredMm: alignment.coveredMm,
+    drift: { deltaE00: Math.round(fit.driftDeltaE00 * 100) / 100 },
+    findings,
+    timingsMs: timings,
+  };
+}
+
+async function alignSheet(artwork: ArtworkRaster, scan: ScanImage): Promise<Alignment> {
+  void artwork;
+  void scan;
+  throw new ImagingError("align_unavailable", "Scan alignment is not available; pass a known alignment.");
+}
+
+/** The alignment of a scan already in the artwork's pixel grid (same size and resolution). */
+export function identityAlignment(artwork: ArtworkRaster, scan: RgbaImage): Alignment {
+  const w = Math.min(artwork.width, scan.width), h = Math.min(artwork.height, scan.height);
+  return {
+    rotationDeg: 0,
+    scale: 1,
+    txMm: 0,
+    tyMm: 0,
+    residualPx: 0,
+    residualMm: 0,
+    correlation: 1,
+    artworkToScan: [1, 0, 0, 0, 1, 0],
+    coveredMm: { x: 0, y: 0, w: (w * 25.4) / artwork.dpi, h: (h * 25.4) / artwork.dpi },
+  };
+}
+
+function checkImage(what: string, img: RgbaImage & { dpi: number }): void {
+  if (!img || !Number.isInteger(img.width) || !Number.isInteger(img.height) || img.width < 8 || img.height < 8) {
+    throw new ImagingError("bad_input", `The ${what} image must be at least 8 × 8 pixels.`);
+  }
+  if (!img.data || img.data.length !== img.width * img.height * 4) {
+    throw new ImagingError("bad_input", `The ${what} pixel data must hold ${img.width * img.height * 4} bytes (RGBA). Got ${img.data?.length}.`);
+  }
+  if (!(img.dpi > 0) || !Number.isFinite(img.dpi)) {
+    throw new ImagingError("bad_input", `The ${what} resolution must be a positive number of dots per inch.`);
+  }
+}

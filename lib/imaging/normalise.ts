@@ -1,0 +1,96 @@
+// NORMALISE: bring the aligned scan's tone and colour onto the artwork with one robust global fit, so that a
+// uniform drift (paper white, ink density, scanner cast) is reported once instead of flagged everywhere, and
+// suppress noise, halftone screen and moiré with a low-pass sized in millimetres. The model itself lives in
+// colour-model.ts; the pairs it is fitted on in samples.ts.
+import sharp from "sharp";
+import { deltaE00, linearToSrgb, srgbToLab, srgbToLinear } from "./colour";
+import { evaluateModel, fitColourModel, identityModel, type ColourModel } from "./colour-model";
+import type { AffineMap, PxRect } from "./raster";
+import { sampleFlatPairs, type SamplePairs } from "./samples";
+import type { RgbaImage } from "./types";
+
+export { applyColourModel, type ColourModel } from "./colour-model";
+
+/** Low-pass of the comparison: Gaussian σ of max(0.12 mm, 1.2 px) — below that, halftone and noise dominate. */
+export function lowPassSigmaPx(dpi: number): number {
+  return Math.max((0.12 * dpi) / 25.4, 1.2);
+}
+
+// Linear light ↔ 8-bit sRGB for the low-pass: a scanner's optics blend light linearly, so blurring encoded
+// values would leave the artwork's edges shaped differently from the scan's (ΔE00 5–10 along every edge).
+const TO_LINEAR16 = Uint16Array.from({ length: 256 }, (_, i) => Math.round(srgbToLinear(i / 255) * 65535));
+const FROM_LINEAR16 = Uint8Array.from({ length: 65536 }, (_, i) => Math.round(linearToSrgb(i / 65535) * 255));
+
+/**
+ * Gaussian low-pass of an RGBA buffer in linear light (16 bits a channel, libvips through sharp), returned as
+ * 8-bit sRGB RGBA with alpha 255.
+ */
+export async function lowPass(rgba: Uint8Array, width: number, height: number, sigmaPx: number): Promise<Uint8Array> {
+  const n = width * height;
+  const linear = new Uint16Array(n * 3);
+  for (let i = 0, p = 0; i < n; i++, p += 4) {
+    linear[i * 3] = TO_LINEAR16[rgba[p]];
+    linear[i * 3 + 1] = TO_LINEAR16[rgba[p + 1]];
+    linear[i * 3 + 2] = TO_LINEAR16[rgba[p + 2]];
+  }
+  const out = await sharp(linear, { raw: { width, height, channels: 3 } })
+    .blur(Math.max(0.3, sigmaPx))
+    .toColourspace("rgb16")
+    .raw({ depth: "ushort" })
+    .toBuffer();
+  const blurred = new Uint16Array(out.buffer, out.byteOffset, out.length / 2);
+  const result = new Uint8Array(n * 4);
+  for (let i = 0, p = 0; i < n; i++, p += 4) {
+    result[p] = FROM_LINEAR16[blurred[i * 3]];
+    result[p + 1] = FROM_LINEAR16[blurred[i * 3 + 1]];
+    result[p + 2] = FROM_LINEAR16[blurred[i * 3 + 2]];
+    result[p + 3] = 255;
+  }
+  return result;
+}
+
+export interface NormalisationFit {
+  model: ColourModel;
+  /** Median ΔE00 of the raw scan against the artwork on flat areas: the sheet's uniform drift. */
+  driftDeltaE00: number;
+  /** Median ΔE00 left after normalisation on the same samples. */
+  residualDeltaE00: number;
+  flatSamples: number;
+}
+
+/** Fewer flat samples than this and the scan is compared as it is (no colour fit). */
+const MIN_FLAT_SAMPLES = 30;
+
+/** Fits the colour model of one sheet from its artwork and scan (no warp needed: samples map through the affine). */
+export function fitNormalisation(
+  artwork: RgbaImage,
+  scan: RgbaImage,
+  artworkToScan: AffineMap,
+  inspectPx: PxRect,
+  radiusPx: number,
+): NormalisationFit {
+  const pairs = sampleFlatPairs(artwork, scan, artworkToScan, inspectPx, radiusPx);
+  const model = pairs.flatCount >= MIN_FLAT_SAMPLES ? fitColourModel(pairs) : identityModel();
+  const { drift, residual } = measureDrift(pairs, model);
+  return { model, driftDeltaE00: drift, residualDeltaE00: residual, flatSamples: pairs.flatCount };
+}
+
+function measureDrift(pairs: SamplePairs, model: ColourModel): { drift: number; residual: number } {
+  const n = pairs.flatCount;
+  if (n === 0) return { drift: 0, residual: 0 };
+  const before = new Float32Array(n);
+  const after = new Float32Array(n);
+  for (let i = 0; i < n; i++) {
+    const a = pairs.flatArt.subarray(i * 3, i * 3 + 3);
+    const s = pairs.flatScan.subarray(i * 3, i * 3 + 3);
+    const [l1, a1, b1] = srgbToLab(a[0] / 255, a[1] / 255, a[2] / 255);
+    const [l2, a2, b2] = srgbToLab(s[0] / 255, s[1] / 255, s[2] / 255);
+    before[i] = deltaE00(l1, a1, b1, l2, a2, b2);
+    const m = evaluateModel(model, s[0], s[1], s[2]);
+    const [l3, a3, b3] = srgbToLab(m[0] / 255, m[1] / 255, m[2] / 255);
+    after[i] = deltaE00(l1, a1, b1, l3, a3, b3);
+  }
+  before.sort();
+  after.sort();
+  return { drift: before[n >> 1], residual: after[n >> 1] };
+}

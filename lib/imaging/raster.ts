@@ -1,0 +1,57 @@
+// Pixel-grid helpers shared by the stages: rectangles in pixels, mm ↔ px, the artwork → scan affine map.
+import type { RectMm } from "./types";
+
+/** A rectangle of whole pixels: columns x … x + w − 1, rows y … y + h − 1. */
+export interface PxRect {
+  x: number;
+  y: number;
+  w: number;
+  h: number;
+}
+
+/** [a, b, c, d, e, f]: xs = a·x + b·y + c, ys = d·x + e·y + f. */
+export type AffineMap = readonly [number, number, number, number, number, number];
+
+export const IDENTITY: AffineMap = [1, 0, 0, 0, 1, 0];
+
+export function mmToPx(mm: number, dpi: number): number {
+  return (mm * dpi) / 25.4;
+}
+
+export function pxToMm(px: number, dpi: number): number {
+  return (px * 25.4) / dpi;
+}
+
+/** Whole pixels covered by a mm rectangle (rounded outwards), clipped to the image. */
+export function rectMmToPx(r: RectMm, dpi: number, width: number, height: number): PxRect {
+  const x0 = Math.max(0, Math.floor(mmToPx(r.x, dpi)));
+  const y0 = Math.max(0, Math.floor(mmToPx(r.y, dpi)));
+  const x1 = Math.min(width, Math.ceil(mmToPx(r.x + r.w, dpi)));
+  const y1 = Math.min(height, Math.ceil(mmToPx(r.y + r.h, dpi)));
+  return { x: x0, y: y0, w: Math.max(0, x1 - x0), h: Math.max(0, y1 - y0) };
+}
+
+/** Whole pixels lying fully inside a mm rectangle (rounded inwards), clipped to the image. */
+export function rectMmToPxInside(r: RectMm, dpi: number, width: number, height: number): PxRect {
+  const x0 = Math.max(0, Math.ceil(mmToPx(r.x, dpi)));
+  const y0 = Math.max(0, Math.ceil(mmToPx(r.y, dpi)));
+  const x1 = Math.min(width, Math.floor(mmToPx(r.x + r.w, dpi)));
+  const y1 = Math.min(height, Math.floor(mmToPx(r.y + r.h, dpi)));
+  return { x: x0, y: y0, w: Math.max(0, x1 - x0), h: Math.max(0, y1 - y0) };
+}
+
+export function intersect(a: PxRect, b: PxRect): PxRect {
+  const x0 = Math.max(a.x, b.x), y0 = Math.max(a.y, b.y);
+  const x1 = Math.min(a.x + a.w, b.x + b.w), y1 = Math.min(a.y + a.h, b.y + b.h);
+  return { x: x0, y: y0, w: Math.max(0, x1 - x0), h: Math.max(0, y1 - y0) };
+}
+
+/** Copies a rectangle of an RGBA image into a new buffer (no bounds growth: the rectangle must fit). */
+export function cropRgba(data: Uint8Array | Uint8ClampedArray, width: number, r: PxRect): Uint8Array {
+  const out = new Uint8Array(r.w * r.h * 4);
+  for (let row = 0; row < r.h; row++) {
+    const from = ((r.y + row) * width + r.x) * 4;
+    out.set(data.subarray(from, from + r.w * 4), row * r.w * 4);
+  }
+  return out;
+}

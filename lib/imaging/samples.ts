@@ -1,0 +1,82 @@
+// Pairs of (artwork colour, scan colour) for the colour fit, read straight through the artwork → scan affine so
+// that no full-size warped copy of the scan is needed. "Flat" pairs lie where the artwork is uniform over the
+// whole radius of the low-pass and registration tolerance, so misregistration cannot bias them; "all" pairs
+// (window means of both) feed the percentile anchors of the tone curves.
+import type { AffineMap, PxRect } from "./raster";
+import type { RgbaImage } from "./types";
+
+export interface SamplePairs {
+  flatArt: Float32Array;
+  flatScan: Float32Array;
+  flatCount: number;
+  allArt: Float32Array;
+  allScan: Float32Array;
+  allCount: number;
+}
+
+const TARGET_GRID_POINTS = 120_000;
+/** A flat artwork window varies by at most this many 8-bit codes per channel. */
+const FLAT_TOLERANCE = 2;
+
+export function sampleFlatPairs(
+  artwork: RgbaImage,
+  scan: RgbaImage,
+  m: AffineMap,
+  inside: PxRect,
+  radiusPx: number,
+): SamplePairs {
+  const r = Math.max(1, Math.ceil(radiusPx));
+  const x0 = inside.x + r, y0 = inside.y + r;
+  const x1 = inside.x + inside.w - r, y1 = inside.y + inside.h - r;
+  const empty = { flatArt: new Float32Array(0), flatScan: new Float32Array(0), flatCount: 0, allArt: new Float32Array(0), allScan: new Float32Array(0), allCount: 0 };
+  if (x1 <= x0 || y1 <= y0) return empty;
+  const stride = Math.max(2, Math.ceil(Math.sqrt(((x1 - x0) * (y1 - y0)) / TARGET_GRID_POINTS)));
+  const cap = Math.ceil((x1 - x0) / stride + 1) * Math.ceil((y1 - y0) / stride + 1);
+  const flatArt = new Float32Array(cap * 3), flatScan = new Float32Array(cap * 3);
+  const allArt = new Float32Array(cap * 3), allScan = new Float32Array(cap * 3);
+  let flatCount = 0, allCount = 0;
+  const art = artwork.data, aw = artwork.width;
+  const sd = scan.data, sw = scan.width, sh = scan.height;
+  const scale = Math.sqrt(Math.abs(m[0] * m[4] - m[1] * m[3]));
+  const kArt = Math.max(1, Math.round(radiusPx / 3));
+  const kScan = Math.max(1, Math.round(kArt * scale));
+  const mean = (data: Uint8Array | Uint8ClampedArray, width: number, cx: number, cy: number, k: number, out: Float32Array, o: number) => {
+    let s0 = 0, s1 = 0, s2 = 0;
+    for (let yy = cy - k; yy <= cy + k; yy++) {
+      for (let xx = cx - k, p = (yy * width + xx) * 4; xx <= cx + k; xx++, p += 4) {
+        s0 += data[p]; s1 += data[p + 1]; s2 += data[p + 2];
+      }
+    }
+    const n = (2 * k + 1) * (2 * k + 1);
+    out[o] = s0 / n; out[o + 1] = s1 / n; out[o + 2] = s2 / n;
+  };
+  for (let y = y0; y < y1; y += stride) {
+    for (let x = x0; x < x1; x += stride) {
+      const xs = Math.round(m[0] * x + m[1] * y + m[2]);
+      const ys = Math.round(m[3] * x + m[4] * y + m[5]);
+      if (xs - kScan < 0 || ys - kScan < 0 || xs + kScan >= sw || ys + kScan >= sh) continue;
+      mean(art, aw, x, y, kArt, allArt, allCount * 3);
+      mean(sd, sw, xs, ys, kScan, allScan, allCount * 3);
+      allCount++;
+      if (!isFlat(art, aw, x, y, r)) continue;
+      const p = (y * aw + x) * 4;
+      flatArt[flatCount * 3] = art[p]; flatArt[flatCount * 3 + 1] = art[p + 1]; flatArt[flatCount * 3 + 2] = art[p + 2];
+      flatScan.set(allScan.subarray((allCount - 1) * 3, allCount * 3), flatCount * 3);
+      flatCount++;
+    }
+  }
+  return { flatArt, flatScan, flatCount, allArt, allScan, allCount };
+}
+
+function isFlat(art: Uint8Array | Uint8ClampedArray, width: number, cx: number, cy: number, r: number): boolean {
+  const c = (cy * width + cx) * 4;
+  const r0 = art[c], g0 = art[c + 1], b0 = art[c + 2];
+  for (let yy = cy - r; yy <= cy + r; yy++) {
+    for (let xx = cx - r, p = (yy * width + xx) * 4; xx <= cx + r; xx++, p += 4) {
+      if (Math.abs(art[p] - r0) > FLAT_TOLERANCE || Math.abs(art[p + 1] - g0) > FLAT_TOLERANCE || Math.abs(art[p + 2] - b0) > FLAT_TOLERANCE) {
+        return false;
+      }
+    }
+  }
+  return true;
+}
