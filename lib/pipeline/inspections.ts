@@ -1,0 +1,51 @@
+// Inspections as users act on them: retry a failed one (QA, admin), read a finding's crop image.
+import { eq } from "drizzle-orm";
+import { db } from "@/db/client";
+import { findings, inspections, scans } from "@/db/schema";
+import { recordAudit } from "@/lib/audit";
+import { authorize, type Actor } from "@/lib/auth/policy";
+import { notFound } from "@/lib/errors";
+import { enqueueInspection } from "@/lib/queue/queues";
+import type { CropKind } from "@/storage/keys";
+import { conflict, loadJobFor } from "./access";
+
+async function loadInspection(id: number) {
+  const [row] = await db
+    .select({ inspection: inspections, jobId: scans.jobId })
+    .from(inspections)
+    .innerJoin(scans, eq(scans.id, inspections.scanId))
+    .where(eq(inspections.id, id))
+    .limit(1);
+  if (!row) throw notFound("The inspection");
+  return row;
+}
+
+/** Puts a failed inspection back in the queue with a fresh set of attempts. */
+export async function retryInspection(actor: Actor, inspectionId: number): Promise<{ inspectionId: number }> {
+  const { inspection, jobId } = await loadInspection(inspectionId);
+  const job = await loadJobFor(actor, jobId, "inspection.read");
+  authorize(actor, "inspection.retry", { customerId: job.customerId });
+  if (inspection.status !== "failed") {
+    throw conflict("not_failed", "Only a failed inspection can be retried; this one is " + inspection.status + ".");
+  }
+  await db.transaction(async (tx) => {
+    await tx
+      .update(inspections)
+      .set({ status: "queued", stage: "queued", progressPercent: 0, errorCode: null, errorMessage: null, version: inspection.version + 1 })
+      .where(eq(inspections.id, inspection.id));
+    await recordAudit(tx, { actorId: actor.id, action: "inspection.retry", subjectType: "inspection", subjectId: inspection.id });
+  });
+  await enqueueInspection(inspection.id);
+  return { inspectionId: inspection.id };
+}
+
+/** The storage key of one crop of one finding, after checking the actor may read the inspection. */
+export async function cropKeyFor(actor: Actor, inspectionId: number, findingId: number, kind: CropKind): Promise<string> {
+  const { jobId } = await loadInspection(inspectionId);
+  await loadJobFor(actor, jobId, "inspection.read");
+  const [finding] = await db.select().from(findings).where(eq(findings.id, findingId)).limit(1);
+  if (!finding || finding.inspectionId !== inspectionId) throw notFound("The finding");
+  const key = { artwork: finding.cropArtworkKey, scan: finding.cropScanKey, difference: finding.cropDifferenceKey }[kind];
+  if (!key) throw notFound("The crop image");
+  return key;
+}

@@ -1,0 +1,138 @@
+// Scans of pulled press sheets (QA): stored, recorded with their sheet number, one inspection queued per scan.
+import { and, asc, eq, inArray } from "drizzle-orm";
+import { db } from "@/db/client";
+import { inspections, scans, toleranceProfiles } from "@/db/schema";
+import { recordAudit } from "@/lib/audit";
+import type { Actor } from "@/lib/auth/policy";
+import { env } from "@/lib/env";
+import { AppError } from "@/lib/errors";
+import { enqueueInspection } from "@/lib/queue/queues";
+import { receiveUpload, type ReceivedFile } from "@/lib/uploads/receive";
+import { parseSheetNumber, sheetNumberFromName } from "@/lib/uploads/sheet-number";
+import { keys, newObjectId, type ScanFormat } from "@/storage/keys";
+import { conflict, loadJobFor } from "./access";
+import { currentApprovedRevision } from "./artworks";
+
+export interface ScanUploadItem {
+  fileName: string;
+  duplicate: boolean;
+  scanId: number;
+  inspectionId: number | null;
+  sheetNumber: number | null;
+  message: string;
+}
+
+/** The tolerance profile an upload asks for by name, else the first one (the strictest shipped). */
+async function chooseProfile(name: string | undefined) {
+  const rows = await db.select({ id: toleranceProfiles.id, name: toleranceProfiles.name }).from(toleranceProfiles).orderBy(asc(toleranceProfiles.id));
+  if (rows.length === 0) throw new AppError("no_profiles", "No tolerance profile is set up yet; ask an administrator.", 409);
+  if (!name) return rows[0];
+  const found = rows.find((r) => r.name === name);
+  if (!found) throw new AppError("unknown_profile", `There is no tolerance profile named “${name}”.`, 422);
+  return found;
+}
+
+function sheetNumberFor(file: ReceivedFile, fields: Record<string, string>, single: boolean): number | null {
+  const typed = single ? fields.sheetNumber : fields[`sheetNumber.${file.fileName}`];
+  if (typed !== undefined && typed.trim() !== "") {
+    const parsed = parseSheetNumber(typed);
+    if (parsed === null) {
+      throw new AppError("bad_sheet_number", `The sheet number “${typed}” for “${file.fileName}” is not a whole number above 0.`, 422);
+    }
+    return parsed;
+  }
+  return sheetNumberFromName(file.fileName);
+}
+
+/** Streams one or more scans into storage; a scan already uploaded to this job is recognised and not stored twice. */
+export async function uploadScans(actor: Actor, jobId: number, request: Request): Promise<{ items: ScanUploadItem[] }> {
+  const job = await loadJobFor(actor, jobId, "scan.upload");
+  const revision = await currentApprovedRevision(job.id);
+  if (!revision) throw conflict("no_approved_artwork", "This job has no approved artwork yet. Prepress must approve a revision before sheets can be inspected.");
+  const upload = await receiveUpload(request, {
+    kind: "scan",
+    maxBytes: env.SCAN_MAX_BYTES,
+    maxPixels: env.SCAN_MAX_MEGAPIXELS * 1e6,
+    maxFiles: env.UPLOAD_MAX_FILES,
+    keyFor: (type) => keys.scan(newObjectId(), type as ScanFormat),
+  });
+  const queued: number[] = [];
+  try {
+    const single = upload.files.length === 1;
+    const numbers = upload.files.map((f) => sheetNumberFor(f, upload.fields, single));
+    const profile = await chooseProfile(upload.fields.profile || undefined);
+    const declaredDpi = parseSheetNumber(upload.fields.dpi) ?? 0;
+    const items = await db.transaction(async (tx) => {
+      const known = await tx
+        .select({ id: scans.id, sha256: scans.sha256, sheetNumber: scans.sheetNumber })
+        .from(scans)
+        .where(and(eq(scans.jobId, job.id), inArray(scans.sha256, upload.files.map((f) => f.sha256))));
+      const out: ScanUploadItem[] = [];
+      const seen = new Map<string, number>();
+      for (const [i, file] of upload.files.entries()) {
+        const before = known.find((k) => k.sha256 === file.sha256);
+        const repeatInRequest = seen.get(file.sha256);
+        if (before || repeatInRequest !== undefined) {
+          const scanId = before?.id ?? repeatInRequest!;
+          const sheet = before ? before.sheetNumber : numbers[i];
+          out.push({
+            fileName: file.fileName,
+            duplicate: true,
+            scanId,
+            inspectionId: null,
+            sheetNumber: sheet,
+            message: `Already uploaded${sheet ? ` as sheet ${sheet}` : ""}: the same file was not stored again.`,
+          });
+          continue;
+        }
+        const [{ id: scanId }] = await tx
+          .insert(scans)
+          .values({
+            jobId: job.id,
+            artworkRevisionId: revision.id,
+            sheetNumber: numbers[i],
+            objectKey: file.key,
+            sha256: file.sha256,
+            // 0 = take the resolution from the file when it is decoded; the worker writes the value it used.
+            dpi: declaredDpi,
+            byteSize: file.bytes,
+            originalFilename: file.fileName,
+            contentType: file.contentType,
+            uploadedBy: actor.id,
+          })
+          .$returningId();
+        seen.set(file.sha256, scanId);
+        const [{ id: inspectionId }] = await tx
+          .insert(inspections)
+          .values({ scanId, artworkRevisionId: revision.id, toleranceProfileId: profile.id, status: "queued", stage: "queued" })
+          .$returningId();
+        await recordAudit(tx, {
+          actorId: actor.id,
+          action: "scan.upload",
+          subjectType: "scan",
+          subjectId: scanId,
+          details: { jobId: job.id, sheetNumber: numbers[i], sha256: file.sha256, bytes: file.bytes, inspectionId },
+        });
+        queued.push(inspectionId);
+        out.push({
+          fileName: file.fileName,
+          duplicate: false,
+          scanId,
+          inspectionId,
+          sheetNumber: numbers[i],
+          message: numbers[i] ? `Stored as sheet ${numbers[i]}; inspection queued.` : "Stored without a sheet number; inspection queued.",
+        });
+      }
+      return out;
+    });
+    // Objects of repeated files are removed; their rows already exist. items[i] describes files[i].
+    await upload.discard(upload.files.filter((_, i) => items[i].duplicate));
+    for (const id of queued) {
+      await enqueueInspection(id).catch((error) => console.error(`Queueing inspection ${id} failed; the worker sweep will queue it:`, error));
+    }
+    return { items };
+  } catch (error) {
+    await upload.discard();
+    throw error;
+  }
+}

@@ -1,0 +1,18 @@
+// Redis connections for BullMQ. Workers block on Redis and must never give up a command (BullMQ requires
+// maxRetriesPerRequest: null); producers in the web app fail fast instead, so a Redis outage turns into a
+// clear error for the user rather than a request that hangs. No "server-only": the worker imports this.
+import { Redis, type RedisOptions } from "ioredis";
+import { env } from "@/lib/env";
+
+export function workerConnection(): Redis {
+  return new Redis(env.REDIS_URL, { maxRetriesPerRequest: null, enableReadyCheck: true, retryStrategy: backoff });
+}
+
+export function producerConnection(): Redis {
+  return new Redis(env.REDIS_URL, { maxRetriesPerRequest: 2, enableOfflineQueue: false, retryStrategy: backoff } satisfies RedisOptions);
+}
+
+/** Reconnect after 0.2 s, growing to 5 s: a restarted Redis is picked up again within seconds. */
+function backoff(times: number): number {
+  return Math.min(200 * 2 ** Math.min(times, 5), 5000);
+}

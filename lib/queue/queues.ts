@@ -1,0 +1,93 @@
+// The three queues of the pipeline and how work is put on them. Job ids are deterministic (no ':' — BullMQ
+// uses it as a separator), so enqueueing the same work twice is a no-op: the worker's start-up sweep and a
+// user's upload may both enqueue one inspection without running it twice.
+import { Queue, type JobsOptions } from "bullmq";
+import type { Redis } from "ioredis";
+import { producerConnection } from "./connection";
+
+export const QUEUE = { rasterise: "rasterise", inspect: "inspect", mail: "mail" } as const;
+
+export interface RasteriseData {
+  revisionId: number;
+}
+export interface InspectData {
+  inspectionId: number;
+}
+export type MailData =
+  | { kind: "sheet_ready"; inspectionId: number }
+  | { kind: "sheet_failed"; inspectionId: number; reason: "inspection_failed" | "verdict_failed" };
+
+const cpuJob: JobsOptions = {
+  attempts: 3,
+  backoff: { type: "exponential", delay: 5_000 },
+  removeOnComplete: { age: 24 * 3600, count: 1000 },
+  // Failed jobs stay (a week) so Retry can re-run the same job and its history stays visible.
+  removeOnFail: { age: 7 * 24 * 3600 },
+};
+const mailJob: JobsOptions = {
+  attempts: 10,
+  backoff: { type: "exponential", delay: 10_000 },
+  removeOnComplete: { age: 7 * 24 * 3600 },
+  removeOnFail: { age: 30 * 24 * 3600 },
+};
+
+export const jobIds = {
+  rasterise: (revisionId: number, dpi: number) => `raster-${revisionId}-${dpi}`,
+  inspect: (inspectionId: number) => `inspection-${inspectionId}`,
+  mail: (data: MailData, run: number) => `mail-${data.kind}-${data.inspectionId}-${run}`,
+};
+
+interface Queues {
+  connection: Redis;
+  rasterise: Queue<RasteriseData>;
+  inspect: Queue<InspectData>;
+  mail: Queue<MailData>;
+}
+const globalForQueues = globalThis as unknown as { tympanQueues?: Queues };
+
+export function queues(): Queues {
+  if (!globalForQueues.tympanQueues) {
+    const connection = producerConnection();
+    connection.on("error", () => undefined); // reported where a command fails
+    globalForQueues.tympanQueues = {
+      connection,
+      rasterise: new Queue(QUEUE.rasterise, { connection, defaultJobOptions: cpuJob }),
+      inspect: new Queue(QUEUE.inspect, { connection, defaultJobOptions: cpuJob }),
+      mail: new Queue(QUEUE.mail, { connection, defaultJobOptions: mailJob }),
+    };
+  }
+  return globalForQueues.tympanQueues;
+}
+
+export async function closeQueues(): Promise<void> {
+  const q = globalForQueues.tympanQueues;
+  globalForQueues.tympanQueues = undefined;
+  if (!q) return;
+  await Promise.all([q.rasterise.close(), q.inspect.close(), q.mail.close()]);
+  q.connection.disconnect();
+}
+
+export async function enqueueRasterise(revisionId: number, dpi: number): Promise<void> {
+  await queues().rasterise.add("rasterise", { revisionId }, { jobId: jobIds.rasterise(revisionId, dpi) });
+}
+
+/**
+ * Queue an inspection. A failed job of the same id is retried in place (Retry button); a finished one is
+ * removed first so the inspection can run again.
+ */
+export async function enqueueInspection(inspectionId: number): Promise<void> {
+  const queue = queues().inspect;
+  const id = jobIds.inspect(inspectionId);
+  const existing = await queue.getJob(id);
+  if (existing) {
+    const state = await existing.getState();
+    if (state === "failed") return existing.retry("failed", { resetAttemptsMade: true, resetAttemptsStarted: true });
+    if (state === "completed") await existing.remove();
+    else return; // waiting, delayed or active: already on its way
+  }
+  await queue.add("inspect", { inspectionId }, { jobId: id });
+}
+
+export async function enqueueMail(data: MailData, run: number): Promise<void> {
+  await queues().mail.add(data.kind, data, { jobId: jobIds.mail(data, run) });
+}
