@@ -1,8 +1,303 @@
-import type { Affine } from "./align-affine";
-import type { OpenCv } from "./opencv";
+// FINE registration on patches at the comparison resolution (the artwork raster, reduced to ≤ ~150 dpi).
+//
+// Why patches: after ECC on small levels the map is right to a few tenths of a millimetre; the last tenth needs
+// full detail, but only in a few places. Windows of 64 px are spread over the covered area (in each grid cell
+// the position with the strongest two-way structure — Shi & Tomasi 1994's smaller structure-tensor eigenvalue —
+// so that a window on a single rule cannot slide along it), each located in the scan resampled through the
+// current map by matchTemplate within a small search radius and a parabolic sub-pixel peak, and an affine map
+// is fitted through all of them, dropping outliers (a defect or the sheet number under a window). Two passes:
+// the second starts from the first fit, so the offsets are near zero, where the parabola's bias vanishes.
+// The search radius is a millimetre, far below the pitch of repeated ups, so no window can lock onto the wrong up.
+// The same measurement on a denser grid, relative to the final affine, gives the optional local field.
+import { apply, compose, fitAffine, type Affine } from "./align-affine";
+import { peak } from "./align-coarse";
+import { withMats, type OpenCv } from "./opencv";
+import { greyLevel, levelToFull, type GreyLevel } from "./pyramid";
 import type { DisplacementField, RgbaImage } from "./types";
+
 export type { DisplacementField };
-export function refineOnPatches(cv: OpenCv, artwork: RgbaImage & { dpi: number }, scan: RgbaImage & { dpi: number }, map: Affine, opts: { localField: boolean }) {
-  void cv; void artwork; void scan; void opts;
-  return { map, residualPx: 0, field: undefined as DisplacementField | undefined };
+
+type Image = RgbaImage & { dpi: number };
+
+const PATCH = 64;
+const FINE_DPI = 150;
+const GRID = 6;
+const FIELD_CELL_MM = 20;
+/** A local offset this far from its neighbours' is a defect under the patch, not paper stretch. */
+const OUTLIER_MM = 0.15;
+const MIN_SCORE = 0.6;
+/** Largest search radius, fine-level px (the first pass: 1.2 mm at 150 dpi). */
+const MAX_RADIUS = 8;
+
+interface Measure {
+  /** Patch centre, full artwork px. */
+  at: [number, number];
+  /** Offset o (full artwork px): the scan shows artwork point p at map(p + o). */
+  off: [number, number];
+  /** Index of the site measured. */
+  site: number;
+  score: number;
 }
+
+export function refineOnPatches(cv: OpenCv, artwork: Image, scan: Image, map: Affine, opts: { localField: boolean }) {
+  const kF = Math.max(1, Math.round(artwork.dpi / FINE_DPI));
+  const art = greyLevel(artwork, kF, true);
+  const toFull = levelToFull(kF);
+  const cover = coveredLevelRect(map, toFull, art, scan);
+  let residualPx = NaN;
+  if (cover) {
+    const sites = chooseSites(art, cover, GRID, true);
+    for (const radiusMm of [1.2, 0.3]) {
+      const radius = Math.min(MAX_RADIUS, Math.max(2, Math.ceil((radiusMm * artwork.dpi) / kF / 25.4)));
+      const found = measure(cv, art, scan, map, toFull, sites, radius);
+      const fit = robustFit(found, map);
+      if (!fit) break;
+      map = fit.map;
+      residualPx = fit.rms;
+    }
+  }
+  let field: DisplacementField | undefined;
+  if (opts.localField && cover) field = localField(cv, art, scan, map, toFull, cover, artwork.dpi / kF);
+  return { map, residualPx: Number.isFinite(residualPx) ? residualPx : 0, field };
+}
+
+/** Covered part of the fine level, inset so whole patches plus their search windows stay on page and scan. */
+function coveredLevelRect(map: Affine, toFull: Affine, art: GreyLevel, scan: RgbaImage): Rect | null {
+  const lm = compose(map, toFull);
+  const inset = PATCH / 2 + MAX_RADIUS + 2;
+  const scanInset = inset * Math.sqrt(Math.abs(lm[0] * lm[4] - lm[1] * lm[3]));
+  // Bounding box of the points of a lattice over the level that land well inside the scan.
+  let x0 = Infinity, y0 = Infinity, x1 = -Infinity, y1 = -Infinity;
+  const step = Math.max(2, Math.floor(Math.min(art.width, art.height) / 100));
+  for (let y = inset; y < art.height - inset; y += step) {
+    for (let x = inset; x < art.width - inset; x += step) {
+      const [sx, sy] = apply(lm, x, y);
+      if (sx >= scanInset && sy >= scanInset && sx < scan.width - scanInset && sy < scan.height - scanInset) {
+        x0 = Math.min(x0, x);
+        y0 = Math.min(y0, y);
+        x1 = Math.max(x1, x);
+        y1 = Math.max(y1, y);
+      }
+    }
+  }
+  if (!(x1 - x0 >= PATCH && y1 - y0 >= PATCH)) return null;
+  return { x0, y0, x1, y1 };
+}
+
+type Rect = { x0: number; y0: number; x1: number; y1: number };
+
+/** Patch centres (fine level px): per grid cell, the most structured of 3 × 3 positions (or the cell centre). */
+function chooseSites(art: GreyLevel, r: Rect, grid: number, pick: boolean, cols = grid, rows = grid): [number, number][] {
+  const sites: [number, number][] = [];
+  const cw = (r.x1 - r.x0) / cols, ch = (r.y1 - r.y0) / rows;
+  for (let j = 0; j < rows; j++) {
+    for (let i = 0; i < cols; i++) {
+      const cx = r.x0 + (i + 0.5) * cw, cy = r.y0 + (j + 0.5) * ch;
+      if (!pick) {
+        sites.push([Math.round(cx), Math.round(cy)]);
+        continue;
+      }
+      let best: [number, number] = [Math.round(cx), Math.round(cy)], bestS = -1;
+      for (const fy of [-0.3, 0, 0.3]) {
+        for (const fx of [-0.3, 0, 0.3]) {
+          const x = Math.round(cx + fx * cw), y = Math.round(cy + fy * ch);
+          const s = structure(art, x, y);
+          if (s > bestS) [bestS, best] = [s, [x, y]];
+        }
+      }
+      if (bestS > 1) sites.push(best);
+    }
+  }
+  return sites;
+}
+
+/** Smaller eigenvalue of the structure tensor over the patch around (x, y), sampled every other pixel. */
+function structure(art: GreyLevel, x: number, y: number): number {
+  const h = PATCH / 2, w = art.width, d = art.data;
+  if (x - h < 1 || y - h < 1 || x + h >= w - 1 || y + h >= art.height - 1) return -1;
+  let sxx = 0, syy = 0, sxy = 0, n = 0;
+  for (let v = y - h; v < y + h; v += 2) {
+    for (let u = x - h; u < x + h; u += 2) {
+      const p = v * w + u;
+      const gx = d[p + 1] - d[p - 1], gy = d[p + w] - d[p - w];
+      sxx += gx * gx;
+      syy += gy * gy;
+      sxy += gx * gy;
+      n++;
+    }
+  }
+  sxx /= n;
+  syy /= n;
+  sxy /= n;
+  return (sxx + syy) / 2 - Math.sqrt(((sxx - syy) / 2) ** 2 + sxy * sxy);
+}
+
+/**
+ * Locate each site's patch in the scan seen through `map`, within ±radius of its prior offset (fine level px).
+ * Offsets returned in full artwork px, prior included.
+ */
+function measure(
+  cv: OpenCv,
+  art: GreyLevel,
+  scan: Image,
+  map: Affine,
+  toFull: Affine,
+  sites: [number, number][],
+  radius: number,
+  prior?: [number, number][],
+): Measure[] {
+  const lm = compose(map, toFull);
+  // Scan pixels per fine-level pixel: average that many sub-samples per pixel, as a coarser sensor would.
+  const n = Math.max(1, Math.round(Math.sqrt(Math.abs(lm[0] * lm[4] - lm[1] * lm[3]))));
+  const out: Measure[] = [];
+  const h = PATCH / 2, win = PATCH + 2 * radius;
+  withMats((keep) => {
+    const templ = keep(new cv.Mat(PATCH, PATCH, cv.CV_32F));
+    const image = keep(new cv.Mat(win, win, cv.CV_32F));
+    const res = keep(new cv.Mat());
+    const t = templ.data32F as Float32Array;
+    sites.forEach(([x, y], s) => {
+      const [px, py] = prior ? prior[s] : [0, 0];
+      for (let v = 0; v < PATCH; v++) t.set(art.data.subarray((y - h + v) * art.width + x - h, (y - h + v) * art.width + x + h), v * PATCH);
+      sampleScan(scan, lm, x - h - radius + px, y - h - radius + py, win, n, image.data32F as Float32Array);
+      cv.matchTemplate(image, templ, res, cv.TM_CCOEFF_NORMED);
+      const r = res.data32F as Float32Array, rw = res.cols as number;
+      let bi = 0;
+      for (let i = 1; i < r.length; i++) if (r[i] > r[bi]) bi = i;
+      const bx = bi % rw, by = (bi - bx) / rw;
+      if (!(r[bi] >= MIN_SCORE) || bx === 0 || by === 0 || bx === rw - 1 || by === rw - 1) return;
+      const ox = px + bx - radius + peak(r[bi - 1], r[bi], r[bi + 1]);
+      const oy = py + by - radius + peak(r[bi - rw], r[bi], r[bi + rw]);
+      const [fx, fy] = apply(toFull, x, y);
+      out.push({ at: [fx, fy], site: s, off: [ox * toFull[0], oy * toFull[4]], score: r[bi] });
+    });
+  });
+  return out;
+}
+
+/** Grey of the scan seen through `lm` (fine level px → scan px) over a win × win window at (x0, y0). */
+function sampleScan(scan: RgbaImage, lm: Affine, x0: number, y0: number, win: number, n: number, out: Float32Array) {
+  const d = scan.data, sw = scan.width, sh = scan.height;
+  const inv = 1 / (n * n);
+  for (let v = 0; v < win; v++) {
+    for (let u = 0; u < win; u++) {
+      let acc = 0;
+      for (let j = 0; j < n; j++) {
+        for (let i = 0; i < n; i++) {
+          const ax = x0 + u + (i + 0.5) / n - 0.5, ay = y0 + v + (j + 0.5) / n - 0.5;
+          const xs = Math.min(Math.max(lm[0] * ax + lm[1] * ay + lm[2], 0), sw - 1.001);
+          const ys = Math.min(Math.max(lm[3] * ax + lm[4] * ay + lm[5], 0), sh - 1.001);
+          const xi = Math.floor(xs), yi = Math.floor(ys), fx = xs - xi, fy = ys - yi;
+          const p = (yi * sw + xi) * 4, q = p + sw * 4;
+          const g00 = 0.299 * d[p] + 0.587 * d[p + 1] + 0.114 * d[p + 2];
+          const g01 = 0.299 * d[p + 4] + 0.587 * d[p + 5] + 0.114 * d[p + 6];
+          const g10 = 0.299 * d[q] + 0.587 * d[q + 1] + 0.114 * d[q + 2];
+          const g11 = 0.299 * d[q + 4] + 0.587 * d[q + 5] + 0.114 * d[q + 6];
+          acc += (1 - fy) * ((1 - fx) * g00 + fx * g01) + fy * ((1 - fx) * g10 + fx * g11);
+        }
+      }
+      out[v * win + u] = acc * inv;
+    }
+  }
+}
+
+/** Affine through the measured pairs with outliers dropped; null when too few remain. */
+function robustFit(found: Measure[], map: Affine): { map: Affine; rms: number } | null {
+  let use = found;
+  for (let round = 0; round < 3; round++) {
+    if (use.length < 6) return null;
+    const fit = fitAffine(
+      use.map((m) => m.at),
+      use.map((m) => apply(map, m.at[0] + m.off[0], m.at[1] + m.off[1])),
+    );
+    const inv = residuals(use, map, fit);
+    const sorted = [...inv].sort((a, b) => a - b);
+    const limit = Math.max(3 * sorted[Math.floor(sorted.length / 2)], 0.3);
+    const keep = use.filter((_, i) => inv[i] <= limit);
+    if (keep.length === use.length || round === 2) {
+      const rms = Math.sqrt(inv.reduce((s, r) => s + r * r, 0) / inv.length);
+      return { map: fit, rms };
+    }
+    use = keep;
+  }
+  return null;
+}
+
+/** Misfit of each pair in artwork px: scan-side distance converted back through the fitted scale. */
+function residuals(found: Measure[], map: Affine, fit: Affine): number[] {
+  const s = Math.sqrt(Math.abs(fit[0] * fit[4] - fit[1] * fit[3]));
+  return found.map((m) => {
+    const q = apply(map, m.at[0] + m.off[0], m.at[1] + m.off[1]);
+    const p = apply(fit, m.at[0], m.at[1]);
+    return Math.hypot(q[0] - p[0], q[1] - p[1]) / s;
+  });
+}
+
+/**
+ * Offsets relative to the final affine: measured at structured sites on a grid of FIELD_CELL_MM cells (twice,
+ * the second time from the first result so the sub-pixel peak is unbiased), lone outliers dropped, then spread
+ * onto a regular grid of nodes by Gaussian-weighted averaging (paper stretch is smooth).
+ */
+function localField(cv: OpenCv, art: GreyLevel, scan: Image, map: Affine, toFull: Affine, r: Rect, dpi: number): DisplacementField | undefined {
+  const cell = (FIELD_CELL_MM * dpi) / 25.4;
+  const cols = Math.max(2, Math.round((r.x1 - r.x0) / cell) + 1), rows = Math.max(2, Math.round((r.y1 - r.y0) / cell) + 1);
+  const sites = chooseSites(art, r, 0, true, cols, rows);
+  const radius = Math.min(MAX_RADIUS, Math.max(2, Math.ceil((1.0 * dpi) / 25.4)));
+  const first = measure(cv, art, scan, map, toFull, sites, radius);
+  const again = measure(cv, art, scan, map, toFull, first.map((m) => sites[m.site]), 2, first.map((m) => [m.off[0] / toFull[0], m.off[1] / toFull[4]]));
+  const found = dropLoneOutliers(again, ((OUTLIER_MM * dpi) / 25.4) * toFull[0]);
+  if (found.length < 4) return undefined;
+  const [ox, oy] = apply(toFull, r.x0, r.y0);
+  const stepX = ((r.x1 - r.x0) / (cols - 1)) * toFull[0], stepY = ((r.y1 - r.y0) / (rows - 1)) * toFull[4];
+  const step = Math.min(stepX, stepY);
+  const nc = Math.floor(((r.x1 - r.x0) * toFull[0]) / step) + 1, nr = Math.floor(((r.y1 - r.y0) * toFull[4]) / step) + 1;
+  const dx: number[] = [], dy: number[] = [];
+  const sigma2 = 2 * (0.6 * step) ** 2;
+  for (let j = 0; j < nr; j++) {
+    for (let i = 0; i < nc; i++) {
+      const x = ox + i * step, y = oy + j * step;
+      const [vx, vy] = localValue(found, x, y, sigma2);
+      dx.push(round3(vx));
+      dy.push(round3(vy));
+    }
+  }
+  return { originX: ox, originY: oy, step, cols: nc, rows: nr, dx, dy };
+}
+
+/**
+ * Offset at (x, y) by Gaussian-weighted local linear regression over the measurements (first order, so nodes at
+ * the edge of the measured area are extrapolated along the trend instead of pulled towards the middle).
+ */
+function localValue(found: Measure[], x: number, y: number, sigma2: number): [number, number] {
+  const w = found.map((m) => Math.exp(-((m.at[0] - x) ** 2 + (m.at[1] - y) ** 2) / sigma2));
+  const sw = w.reduce((a, b) => a + b, 0);
+  if (sw < 1e-6) return [0, 0];
+  try {
+    const fit = fitAffine(
+      found.map((m) => [m.at[0] - x, m.at[1] - y]),
+      found.map((m) => m.off),
+      w,
+    );
+    if (Number.isFinite(fit[2]) && Number.isFinite(fit[5])) return [fit[2], fit[5]];
+  } catch {
+    // Too few or collinear measurements nearby: fall back to the weighted mean.
+  }
+  return [found.reduce((a, m, i) => a + w[i] * m.off[0], 0) / sw, found.reduce((a, m, i) => a + w[i] * m.off[1], 0) / sw];
+}
+
+/** Drops a measurement far from the median of its eight nearest neighbours (a defect or variable data under it). */
+function dropLoneOutliers(found: Measure[], limitPx: number): Measure[] {
+  return found.filter((m) => {
+    const near = found
+      .filter((o) => o !== m)
+      .map((o) => ({ o, d: (o.at[0] - m.at[0]) ** 2 + (o.at[1] - m.at[1]) ** 2 }))
+      .sort((a, b) => a.d - b.d)
+      .slice(0, 8)
+      .map((e) => e.o);
+    if (near.length < 3) return true;
+    const med = (k: 0 | 1) => near.map((o) => o.off[k]).sort((a, b) => a - b)[Math.floor(near.length / 2)];
+    return Math.hypot(m.off[0] - med(0), m.off[1] - med(1)) <= limitPx;
+  });
+}
+
+const round3 = (v: number) => Math.round(v * 1000) / 1000;

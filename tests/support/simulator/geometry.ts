@@ -22,12 +22,23 @@ export interface GlassOptions {
   /** Lid colour around the sheet; default a white-ish lid. */
   background?: [number, number, number];
   resampling?: "bilinear" | "bicubic";
+  /** Paper stretch: a smooth displacement (mm) of each artwork point (mm from the page's top-left) before the
+   * turn and scale, so the true map is no longer affine. Keep it small (a few tenths of a mm). */
+  distortMm?: (xMm: number, yMm: number) => [number, number];
+}
+
+export interface GlassScan {
+  scan: ScanImage;
+  /** True artwork px → scan px, without the distortion. */
+  artworkToScan: Affine;
+  /** True scan position of an artwork pixel, distortion included. */
+  scanPoint: (x: number, y: number) => [number, number];
 }
 
 export const WHITE_LID: [number, number, number] = [246, 245, 241];
 export const GREY_LID: [number, number, number] = [62, 63, 66];
 
-export function placeOnGlass(artwork: ArtworkRaster, o: GlassOptions = {}): { scan: ScanImage; artworkToScan: Affine } {
+export function placeOnGlass(artwork: ArtworkRaster, o: GlassOptions = {}): GlassScan {
   const deg = o.rotationDeg ?? 0, s = o.scale ?? 1, dpi = o.dpi ?? artwork.dpi;
   const bg = o.background ?? WHITE_LID;
   const wMm = (artwork.width * 25.4) / artwork.dpi, hMm = (artwork.height * 25.4) / artwork.dpi;
@@ -55,6 +66,16 @@ export function placeOnGlass(artwork: ArtworkRaster, o: GlassOptions = {}): { sc
   inv[2] = -(inv[0] * m[2] + inv[1] * m[5]);
   inv[5] = -(inv[3] * m[2] + inv[4] * m[5]);
 
+  const distort = o.distortMm;
+  const shift = (x: number, y: number): [number, number] => {
+    if (!distort) return [0, 0];
+    const [dx, dy] = distort((x + 0.5) * fa, (y + 0.5) * fa);
+    return [dx / fa, dy / fa];
+  };
+  const scanPoint = (x: number, y: number): [number, number] => {
+    const [dx, dy] = shift(x, y);
+    return [m[0] * (x + dx) + m[1] * (y + dy) + m[2], m[3] * (x + dx) + m[4] * (y + dy) + m[5]];
+  };
   const n = Math.max(1, Math.ceil(Math.sqrt(Math.abs(inv[0] * inv[4] - inv[1] * inv[3])) - 1e-9));
   const sample = o.resampling === "bicubic" ? bicubic : bilinear;
   const data = new Uint8ClampedArray(width * height * 4);
@@ -65,7 +86,16 @@ export function placeOnGlass(artwork: ArtworkRaster, o: GlassOptions = {}): { sc
       for (let j = 0; j < n; j++) {
         for (let i = 0; i < n; i++) {
           const sx = x + (i + 0.5) / n - 0.5, sy = y + (j + 0.5) / n - 0.5;
-          const ax = inv[0] * sx + inv[1] * sy + inv[2], ay = inv[3] * sx + inv[4] * sy + inv[5];
+          let ax = inv[0] * sx + inv[1] * sy + inv[2], ay = inv[3] * sx + inv[4] * sy + inv[5];
+          if (distort) {
+            // Invert p + d(p) = q by fixed-point iteration (d is small and smooth).
+            const qx = ax, qy = ay;
+            for (let it = 0; it < 4; it++) {
+              const [dx, dy] = shift(ax, ay);
+              ax = qx - dx;
+              ay = qy - dy;
+            }
+          }
           if (ax >= -0.5 && ay >= -0.5 && ax <= artwork.width - 0.5 && ay <= artwork.height - 0.5) sample(artwork, ax, ay, acc);
           else for (let k = 0; k < 3; k++) acc[k] += bg[k];
         }
@@ -75,7 +105,7 @@ export function placeOnGlass(artwork: ArtworkRaster, o: GlassOptions = {}): { sc
       data[p + 3] = 255;
     }
   }
-  return { scan: { width, height, data, dpi, dpiSource: "caller" }, artworkToScan: m };
+  return { scan: { width, height, data, dpi, dpiSource: "caller" }, artworkToScan: m, scanPoint };
 }
 
 function bilinear(img: ArtworkRaster, x: number, y: number, acc: number[]) {
