@@ -49,3 +49,48 @@ export async function cropKeyFor(actor: Actor, inspectionId: number, findingId: 
   if (!key) throw notFound("The crop image");
   return key;
 }
+
+export interface FindingView {
+  id: number;
+  kind: "extra_ink" | "missing_ink" | "colour_shift";
+  xMm: number;
+  yMm: number;
+  wMm: number;
+  hMm: number;
+  areaMm2: number;
+  deltaE00Mean: number;
+  deltaE00Max: number;
+  up: number | null;
+  decision: "pending" | "accepted" | "rejected";
+  crops: { artwork: string; scan: string; difference: string } | null;
+}
+
+/** Findings of one inspection with links to their crop images, largest first. */
+export async function listFindings(actor: Actor, inspectionId: number): Promise<FindingView[]> {
+  const { jobId } = await loadInspection(inspectionId);
+  await loadJobFor(actor, jobId, "inspection.read");
+  const rows = await db.select().from(findings).where(eq(findings.inspectionId, inspectionId));
+  const base = `/api/inspections/${inspectionId}/findings`;
+  return rows
+    .sort((a, b) => b.areaUm2 - a.areaUm2)
+    .map((f) => ({
+      id: f.id,
+      kind: f.kind,
+      xMm: f.xUm / 1000,
+      yMm: f.yUm / 1000,
+      wMm: f.wUm / 1000,
+      hMm: f.hUm / 1000,
+      areaMm2: f.areaUm2 / 1e6,
+      deltaE00Mean: f.deltaE00Mean,
+      deltaE00Max: f.deltaE00Max,
+      up: f.upIndex,
+      decision: f.decision,
+      crops: f.cropScanKey
+        ? {
+            artwork: `${base}/${f.id}/crops/artwork`,
+            scan: `${base}/${f.id}/crops/scan`,
+            difference: `${base}/${f.id}/crops/difference`,
+          }
+        : null,
+    }));
+}

@@ -8,6 +8,7 @@ import { ImagingError } from "@/lib/imaging/types";
 import { failRaster, loadRevisionWork, saveRaster } from "@/lib/pipeline/records";
 import type { RasteriseData } from "@/lib/queue/queues";
 import { keys } from "@/storage/keys";
+import { pdfHasScript } from "./pdf-scripts";
 import { getObjectBuffer, objectExists, putObject } from "@/storage/objects";
 
 /** The uuid part of "artwork-sources/<uuid>.pdf": rasters live under the same random id. */
@@ -22,6 +23,12 @@ export default async function rasterise(job: SandboxedJob<RasteriseData>): Promi
   if (revision.rasterStatus === "ready" && revision.rasterKeys?.includes(key) && (await objectExists(key))) return { key };
 
   const pdf = await getObjectBuffer(revision.sourceKey);
+  if (await pdfHasScript(new Uint8Array(pdf))) {
+    const message =
+      "The artwork PDF contains JavaScript (inside compressed objects). Artwork with scripts is refused; export it again without scripts or actions and upload the new file.";
+    await failRaster(revision.id, message);
+    throw new UnrecoverableError(message);
+  }
   let page;
   try {
     page = await rasterisePage(new Uint8Array(pdf), { page: 1, dpi });

@@ -1,0 +1,41 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { JobPipeline } from "@/components/pipeline/job-pipeline";
+import { requireActor } from "@/lib/auth/session";
+import { AppError } from "@/lib/errors";
+import { getJobPipeline, type JobPipelineView } from "@/lib/pipeline/view";
+
+export const metadata: Metadata = { title: "Job" };
+export const dynamic = "force-dynamic";
+
+export default async function JobPage(props: { params: Promise<{ jobId: string }> }) {
+  const params = await props.params;
+  const actor = await requireActor();
+  const jobId = Number(params.jobId);
+  if (!Number.isSafeInteger(jobId) || jobId <= 0) notFound();
+  let view: JobPipelineView;
+  try {
+    view = await getJobPipeline(actor, jobId);
+  } catch (error) {
+    if (error instanceof AppError && (error.status === 404 || error.status === 403)) notFound();
+    throw error;
+  }
+  const { job } = view;
+  return (
+    <div className="space-y-6">
+      <div>
+        <Link href="/" className="text-sm text-accent hover:underline">
+          ← Jobs
+        </Link>
+        <h1 className="mt-2 text-2xl font-semibold tracking-tight">
+          <span className="font-mono text-lg text-ink-muted">{job.jobNumber}</span> {job.title}
+        </h1>
+        <p className="mt-1 text-sm text-ink-muted">
+          {job.customerName} · {job.upsRows * job.upsColumns} up{job.upsRows * job.upsColumns === 1 ? "" : "s"} ({job.upsRows} × {job.upsColumns}) · compared at {job.artworkDpi} dpi
+        </p>
+      </div>
+      <JobPipeline initial={view} />
+    </div>
+  );
+}

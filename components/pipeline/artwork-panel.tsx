@@ -1,0 +1,95 @@
+"use client";
+// Artwork revisions of a job: upload a PDF (prepress) with a progress bar, approve a draft.
+import { useState } from "react";
+import { Notice } from "@/components/ui/notice";
+import type { JobPipelineView } from "@/lib/pipeline/view";
+import { ProgressBar } from "./progress-bar";
+import { errorMessageOf, postJson, sendForm } from "./send-form";
+
+const statusLabel = { draft: "Draft", approved: "Approved", superseded: "Superseded" } as const;
+const rasterLabel = { none: "", pending: "Preparing for comparison…", ready: "Ready for comparison", failed: "Could not be prepared" } as const;
+const mb = (bytes: number) => `${(bytes / 1024 / 1024).toFixed(1)} MB`;
+
+export function ArtworkPanel({ view, refresh }: { view: JobPipelineView; refresh: () => void }) {
+  const [progress, setProgress] = useState<number | null>(null);
+  const [notice, setNotice] = useState<{ tone: "ok" | "error" | "caution"; text: string } | null>(null);
+  const [approving, setApproving] = useState<number | null>(null);
+
+  async function upload(file: File) {
+    const form = new FormData();
+    form.append("file", file, file.name);
+    setNotice(null);
+    setProgress(0);
+    const res = await sendForm(`/api/jobs/${view.job.id}/artworks`, form, setProgress);
+    setProgress(null);
+    if (res.status === 201 || res.status === 200) {
+      const body = res.body as { duplicate: boolean; message: string };
+      setNotice({ tone: body.duplicate ? "caution" : "ok", text: body.message });
+      refresh();
+    } else {
+      setNotice({ tone: "error", text: errorMessageOf(res.body) });
+    }
+  }
+
+  async function approve(id: number) {
+    setApproving(id);
+    const res = await postJson(`/api/artworks/${id}/approve`);
+    setApproving(null);
+    setNotice(res.status === 200 ? { tone: "ok", text: "Approved. The artwork is being prepared for comparison." } : { tone: "error", text: errorMessageOf(res.body) });
+    refresh();
+  }
+
+  return (
+    <section aria-labelledby="artwork-heading" className="space-y-3 rounded-xl border border-rule bg-surface p-5 shadow-sm">
+      <div className="flex flex-wrap items-center justify-between gap-3">
+        <h2 id="artwork-heading" className="text-lg font-semibold">Artwork</h2>
+        {view.may.uploadArtwork && (
+          <label className="cursor-pointer rounded-md bg-accent px-3 py-1.5 text-sm font-medium text-white hover:bg-accent-strong">
+            Upload artwork PDF
+            <input
+              type="file"
+              accept="application/pdf,.pdf"
+              className="sr-only"
+              disabled={progress !== null}
+              onChange={(e) => {
+                const file = e.target.files?.[0];
+                e.target.value = "";
+                if (file) void upload(file);
+              }}
+            />
+          </label>
+        )}
+      </div>
+      {progress !== null && <ProgressBar fraction={progress} label="Artwork upload" />}
+      {notice && <Notice tone={notice.tone}>{notice.text}</Notice>}
+      {view.revisions.length === 0 ? (
+        <p className="text-sm text-ink-muted">No artwork yet. Prepress uploads the approved artwork PDF of this job here.</p>
+      ) : (
+        <ul className="divide-y divide-rule text-sm">
+          {view.revisions.map((r) => (
+            <li key={r.id} className="flex flex-wrap items-center gap-x-4 gap-y-1 py-2">
+              <span className="font-medium">Revision {r.revision}</span>
+              <span className="min-w-0 flex-1 truncate text-ink-muted" title={r.fileName}>
+                {r.fileName} · {mb(r.bytes)}
+                {r.pageWidthMm && r.pageHeightMm ? ` · ${r.pageWidthMm} × ${r.pageHeightMm} mm` : ""}
+              </span>
+              <span className={r.status === "approved" ? "font-medium text-ok" : "text-ink-muted"}>{statusLabel[r.status]}</span>
+              {r.status === "approved" && <span className={r.rasterStatus === "failed" ? "text-danger" : "text-ink-muted"}>{rasterLabel[r.rasterStatus]}</span>}
+              {r.status === "draft" && view.may.approveArtwork && (
+                <button
+                  type="button"
+                  onClick={() => void approve(r.id)}
+                  disabled={approving !== null}
+                  className="rounded-md border border-accent px-2.5 py-1 text-xs font-medium text-accent hover:bg-accent-soft disabled:opacity-50"
+                >
+                  {approving === r.id ? "Approving…" : "Approve"}
+                </button>
+              )}
+              {r.rasterError && <p className="w-full text-danger">{r.rasterError}</p>}
+            </li>
+          ))}
+        </ul>
+      )}
+    </section>
+  );
+}
