@@ -12,14 +12,23 @@
 import { apply, compose, fitAffine, type Affine } from "./align-affine";
 import { peak } from "./align-coarse";
 import { withMats, type OpenCv } from "./opencv";
-import { greyLevel, levelToFull, type GreyLevel } from "./pyramid";
+import { levelToFull, levelWindow } from "./pyramid";
 import type { DisplacementField, RgbaImage } from "./types";
 
 export type { DisplacementField };
 
 type Image = RgbaImage & { dpi: number };
 
+/** The artwork at the fine level, read window by window from the RGBA (see levelWindow). */
+interface FineArtwork {
+  width: number;
+  height: number;
+  window(x0: number, y0: number, w: number, h: number, out: Float32Array): Float32Array;
+}
+
 const PATCH = 64;
+/** Sampling step of the structure measure, fine level px. */
+const STRIDE = 4;
 const FINE_DPI = 150;
 const GRID = 6;
 const FIELD_CELL_MM = 20;
@@ -41,7 +50,11 @@ interface Measure {
 
 export function refineOnPatches(cv: OpenCv, artwork: Image, scan: Image, map: Affine, opts: { localField: boolean }) {
   const kF = Math.max(1, Math.round(artwork.dpi / FINE_DPI));
-  const art = greyLevel(artwork, kF, true);
+  const art: FineArtwork = {
+    width: Math.floor(artwork.width / kF),
+    height: Math.floor(artwork.height / kF),
+    window: (x0, y0, w, h, out) => levelWindow(artwork, kF, x0, y0, w, h, out),
+  };
   const toFull = levelToFull(kF);
   const cover = coveredLevelRect(map, toFull, art, scan);
   let residualPx = NaN;
@@ -62,7 +75,7 @@ export function refineOnPatches(cv: OpenCv, artwork: Image, scan: Image, map: Af
 }
 
 /** Covered part of the fine level, inset so whole patches plus their search windows stay on page and scan. */
-function coveredLevelRect(map: Affine, toFull: Affine, art: GreyLevel, scan: RgbaImage): Rect | null {
+function coveredLevelRect(map: Affine, toFull: Affine, art: FineArtwork, scan: RgbaImage): Rect | null {
   const lm = compose(map, toFull);
   const inset = PATCH / 2 + MAX_RADIUS + 2;
   const scanInset = inset * Math.sqrt(Math.abs(lm[0] * lm[4] - lm[1] * lm[3]));
@@ -87,7 +100,7 @@ function coveredLevelRect(map: Affine, toFull: Affine, art: GreyLevel, scan: Rgb
 type Rect = { x0: number; y0: number; x1: number; y1: number };
 
 /** Patch centres (fine level px): per grid cell, the most structured of 3 × 3 positions (or the cell centre). */
-function chooseSites(art: GreyLevel, r: Rect, grid: number, pick: boolean, cols = grid, rows = grid): [number, number][] {
+function chooseSites(art: FineArtwork, r: Rect, grid: number, pick: boolean, cols = grid, rows = grid): [number, number][] {
   const sites: [number, number][] = [];
   const cw = (r.x1 - r.x0) / cols, ch = (r.y1 - r.y0) / rows;
   for (let j = 0; j < rows; j++) {
@@ -111,24 +124,26 @@ function chooseSites(art: GreyLevel, r: Rect, grid: number, pick: boolean, cols 
   return sites;
 }
 
-/** Smaller eigenvalue of the structure tensor over the patch around (x, y), sampled every other pixel. */
-function structure(art: GreyLevel, x: number, y: number): number {
-  const h = PATCH / 2, w = art.width, d = art.data;
-  if (x - h < 1 || y - h < 1 || x + h >= w - 1 || y + h >= art.height - 1) return -1;
-  let sxx = 0, syy = 0, sxy = 0, n = 0;
-  for (let v = y - h; v < y + h; v += 2) {
-    for (let u = x - h; u < x + h; u += 2) {
-      const p = v * w + u;
-      const gx = d[p + 1] - d[p - 1], gy = d[p + w] - d[p - w];
+/** Smaller eigenvalue of the structure tensor over the patch around (x, y), sampled every STRIDE pixels. */
+function structure(art: FineArtwork, x: number, y: number): number {
+  const h = PATCH / 2;
+  if (x - h < 1 || y - h < 1 || x + h >= art.width - 1 || y + h >= art.height - 1) return -1;
+  const n = PATCH / STRIDE, row = new Float32Array(3), col = new Float32Array(3);
+  let sxx = 0, syy = 0, sxy = 0;
+  for (let j = 0; j < n; j++) {
+    for (let i = 0; i < n; i++) {
+      const u = x - h + i * STRIDE, v = y - h + j * STRIDE;
+      art.window(u - 1, v, 3, 1, row);
+      art.window(u, v - 1, 1, 3, col);
+      const gx = row[2] - row[0], gy = col[2] - col[0];
       sxx += gx * gx;
       syy += gy * gy;
       sxy += gx * gy;
-      n++;
     }
   }
-  sxx /= n;
-  syy /= n;
-  sxy /= n;
+  sxx /= n * n;
+  syy /= n * n;
+  sxy /= n * n;
   return (sxx + syy) / 2 - Math.sqrt(((sxx - syy) / 2) ** 2 + sxy * sxy);
 }
 
@@ -138,7 +153,7 @@ function structure(art: GreyLevel, x: number, y: number): number {
  */
 function measure(
   cv: OpenCv,
-  art: GreyLevel,
+  art: FineArtwork,
   scan: Image,
   map: Affine,
   toFull: Affine,
@@ -158,7 +173,7 @@ function measure(
     const t = templ.data32F as Float32Array;
     sites.forEach(([x, y], s) => {
       const [px, py] = prior ? prior[s] : [0, 0];
-      for (let v = 0; v < PATCH; v++) t.set(art.data.subarray((y - h + v) * art.width + x - h, (y - h + v) * art.width + x + h), v * PATCH);
+      art.window(x - h, y - h, PATCH, PATCH, t);
       sampleScan(scan, lm, x - h - radius + px, y - h - radius + py, win, n, image.data32F as Float32Array);
       cv.matchTemplate(image, templ, res, cv.TM_CCOEFF_NORMED);
       const r = res.data32F as Float32Array, rw = res.cols as number;
@@ -238,7 +253,7 @@ function residuals(found: Measure[], map: Affine, fit: Affine): number[] {
  * the second time from the first result so the sub-pixel peak is unbiased), lone outliers dropped, then spread
  * onto a regular grid of nodes by Gaussian-weighted averaging (paper stretch is smooth).
  */
-function localField(cv: OpenCv, art: GreyLevel, scan: Image, map: Affine, toFull: Affine, r: Rect, dpi: number): DisplacementField | undefined {
+function localField(cv: OpenCv, art: FineArtwork, scan: Image, map: Affine, toFull: Affine, r: Rect, dpi: number): DisplacementField | undefined {
   const cell = (FIELD_CELL_MM * dpi) / 25.4;
   const cols = Math.max(2, Math.round((r.x1 - r.x0) / cell) + 1), rows = Math.max(2, Math.round((r.y1 - r.y0) / cell) + 1);
   const sites = chooseSites(art, r, 0, true, cols, rows);

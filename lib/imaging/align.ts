@@ -17,7 +17,7 @@ import { coveredRect, compose, invert, pxRectToMm, scaling, translate, type Affi
 import { coarsePlacement } from "./align-coarse";
 import { refineOnPatches, type DisplacementField } from "./align-patches";
 import { loadOpenCv, openCvMessage, withMats, type OpenCv } from "./opencv";
-import { greyLevel, levelToFull, type GreyLevel } from "./pyramid";
+import { greyLevel, halve, levelToFull, type GreyLevel } from "./pyramid";
 import { ImagingError, type Alignment, type ArtworkRaster, type RgbaImage, type ScanImage } from "./types";
 
 export { warpScanToArtwork } from "./align-warp";
@@ -39,8 +39,6 @@ const MIN_CORRELATION = 0.7;
 const MIN_SCAN_CONTRAST = 2;
 /** Pixels of the coarse level (the rotation sweep, ~1 ms a candidate). */
 const COARSE_PIXELS = 4_000;
-/** ECC levels, as linear factors finer than the coarse level. */
-const ECC_LEVELS = [2, 4];
 /** Level pixels kept clear of the page edge in ECC. */
 const EDGE = 3;
 
@@ -59,10 +57,13 @@ export async function alignScan(artwork: ArtworkRaster, scan: ScanImage, opts: A
   // Level sizes follow the smaller of page and scan, so a scan of a corner of a large sheet keeps detail.
   const areaMm2 = Math.min(mm(artwork.width, artwork.dpi) * mm(artwork.height, artwork.dpi), mm(scan.width, scan.dpi) * mm(scan.height, scan.dpi));
   const coarseMm = Math.min(8, Math.max(0.4, Math.sqrt(areaMm2 / COARSE_PIXELS)));
-  const kOf = (pixelMm: number, dpi: number) => Math.max(1, Math.round((pixelMm * dpi) / 25.4));
 
-  const artC = greyLevel(artwork, kOf(coarseMm, artwork.dpi), true);
-  const scanC = greyLevel(scan, kOf(coarseMm, scan.dpi));
+  // One pass over each full image gives the ECC level; the coarse level is its 2 × 2 reduction.
+  const kE = (dpi: number) => Math.max(1, Math.round((coarseMm * dpi) / 2 / 25.4));
+  const artE = greyLevel(artwork, kE(artwork.dpi), true);
+  const artC = greyLevel(artwork, 2 * artE.k, true);
+  const scanE = greyLevel(scan, kE(scan.dpi));
+  const scanC = halve(scanE);
   if (std(scanC.data) < MIN_SCAN_CONTRAST) throw mismatch();
   if (std(artC.data) < MIN_SCAN_CONTRAST) throw new ImagingError("artwork_blank", "the artwork has nothing printed to align the scan to");
   lap("levels");
@@ -72,12 +73,10 @@ export async function alignScan(artwork: ArtworkRaster, scan: ScanImage, opts: A
   let map = levelMapToFull(coarse.map, artC.k, scanC.k);
   lap("coarse");
 
-  let rho = 0;
-  for (const f of ECC_LEVELS) {
-    const step = ecc(cv, greyLevel(artwork, kOf(coarseMm / f, artwork.dpi), true), greyLevel(scan, kOf(coarseMm / f, scan.dpi)), map, 30);
-    map = step.map;
-    rho = step.rho;
-  }
+  // ECC on the coarse level (cheap, widens the basin), then on the twice finer one; the patches do the rest.
+  map = ecc(cv, artC, scanC, map, 50).map;
+  const { map: eccMap, rho } = ecc(cv, artE, scanE, map, 30);
+  map = eccMap;
   lap("ecc");
   if (!(rho >= MIN_CORRELATION)) throw mismatch();
 

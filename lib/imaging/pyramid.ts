@@ -22,12 +22,46 @@ export function greyLevel(img: RgbaImage, k: number, cacheIt = false): GreyLevel
   let levels = cacheIt ? cache.get(img.data) : undefined;
   const hit = levels?.get(k);
   if (hit) return hit;
-  const level = reduce(img, k);
+  // A cached level of half the block size is reduced 2 × 2 instead of reading the full image again.
+  const finer = k % 2 === 0 ? levels?.get(k / 2) : undefined;
+  const level = finer ? halve(finer) : reduce(img, k);
   if (cacheIt) {
     if (!levels) cache.set(img.data, (levels = new Map()));
     levels.set(k, level);
   }
   return level;
+}
+
+/** The level of twice the block size, by 2 × 2 averaging of `l` (exactly the 2k box of the full image). */
+export function halve(l: GreyLevel): GreyLevel {
+  const w = Math.max(1, l.width >> 1), h = Math.max(1, l.height >> 1);
+  const out = new Float32Array(w * h), d = l.data, lw = l.width;
+  if (l.width < 2 || l.height < 2) return { width: l.width, height: l.height, data: l.data, k: l.k };
+  for (let j = 0; j < h; j++) {
+    const p = 2 * j * lw, q = p + lw;
+    for (let i = 0; i < w; i++) out[j * w + i] = 0.25 * (d[p + 2 * i] + d[p + 2 * i + 1] + d[q + 2 * i] + d[q + 2 * i + 1]);
+  }
+  return { width: w, height: h, data: out, k: l.k * 2 };
+}
+
+/**
+ * Grey of a w × h window of the level of block size k, at level pixel (x0, y0), computed from the RGBA on
+ * demand (for patches: no full-size level of a large sheet is ever held). Outside the image: edge values.
+ */
+export function levelWindow(img: RgbaImage, k: number, x0: number, y0: number, w: number, h: number, out: Float32Array): Float32Array {
+  const src = img.data, iw = img.width, ih = img.height, norm = 1 / (k * k);
+  for (let v = 0; v < h; v++) {
+    for (let u = 0; u < w; u++) {
+      let s = 0;
+      for (let dy = 0; dy < k; dy++) {
+        const y = Math.min(ih - 1, Math.max(0, (y0 + v) * k + dy));
+        let p = (y * iw + Math.min(iw - k, Math.max(0, (x0 + u) * k))) * 4;
+        for (let dx = 0; dx < k; dx++, p += 4) s += 0.299 * src[p] + 0.587 * src[p + 1] + 0.114 * src[p + 2];
+      }
+      out[v * w + u] = s * norm;
+    }
+  }
+  return out;
 }
 
 /** Level pixel → full-resolution pixel (pixel centres at integer coordinates). */
