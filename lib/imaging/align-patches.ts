@@ -35,6 +35,8 @@ const FIELD_CELL_MM = 20;
 /** A local offset this far from its neighbours' is a defect under the patch, not paper stretch. */
 const OUTLIER_MM = 0.15;
 const MIN_SCORE = 0.6;
+/** Fewest structured sites for a patch fit. */
+const MIN_SITES = 6;
 /** Largest search radius, fine-level px (the first pass: 1.2 mm at 150 dpi). */
 const MAX_RADIUS = 8;
 
@@ -58,12 +60,16 @@ export function refineOnPatches(cv: OpenCv, artwork: Image, scan: Image, map: Af
   const toFull = levelToFull(kF);
   const cover = coveredLevelRect(map, toFull, art, scan);
   let residualPx = NaN;
+  // Share of the structured sites that found their patch where the fit says (score-weighted): near 1 for a
+  // scan of this artwork, low for a similar-looking design, whose patches find nothing or disagree.
+  let agreement: number | null = null;
   if (cover) {
     const sites = chooseSites(art, cover, GRID, true);
     for (const radiusMm of [1.2, 0.3]) {
       const radius = Math.min(MAX_RADIUS, Math.max(2, Math.ceil((radiusMm * artwork.dpi) / kF / 25.4)));
       const found = measure(cv, art, scan, map, toFull, sites, radius);
-      const fit = robustFit(found, map);
+      const fit = sites.length >= MIN_SITES ? robustFit(found, map) : null;
+      agreement = sites.length >= MIN_SITES ? (fit ? fit.inliers.reduce((a, m) => a + m.score, 0) / sites.length : 0) : null;
       if (!fit) break;
       map = fit.map;
       residualPx = fit.rms;
@@ -71,7 +77,7 @@ export function refineOnPatches(cv: OpenCv, artwork: Image, scan: Image, map: Af
   }
   let field: DisplacementField | undefined;
   if (opts.localField && cover) field = localField(cv, art, scan, map, toFull, cover, artwork.dpi / kF);
-  return { map, residualPx: Number.isFinite(residualPx) ? residualPx : 0, field };
+  return { map, residualPx: Number.isFinite(residualPx) ? residualPx : 0, field, agreement };
 }
 
 /** Covered part of the fine level, inset so whole patches plus their search windows stay on page and scan. */
@@ -217,22 +223,18 @@ function sampleScan(scan: RgbaImage, lm: Affine, x0: number, y0: number, win: nu
 }
 
 /** Affine through the measured pairs with outliers dropped; null when too few remain. */
-function robustFit(found: Measure[], map: Affine): { map: Affine; rms: number } | null {
+function robustFit(found: Measure[], map: Affine): { map: Affine; rms: number; inliers: Measure[] } | null {
   let use = found;
-  for (let round = 0; round < 3; round++) {
-    if (use.length < 6) return null;
+  for (let round = 0; round < 4 && use.length >= MIN_SITES; round++) {
     const fit = fitAffine(
       use.map((m) => m.at),
       use.map((m) => apply(map, m.at[0] + m.off[0], m.at[1] + m.off[1])),
     );
-    const inv = residuals(use, map, fit);
-    const sorted = [...inv].sort((a, b) => a - b);
+    const res = residuals(use, map, fit);
+    const sorted = [...res].sort((a, b) => a - b);
     const limit = Math.max(3 * sorted[Math.floor(sorted.length / 2)], 0.3);
-    const keep = use.filter((_, i) => inv[i] <= limit);
-    if (keep.length === use.length || round === 2) {
-      const rms = Math.sqrt(inv.reduce((s, r) => s + r * r, 0) / inv.length);
-      return { map: fit, rms };
-    }
+    const keep = use.filter((_, i) => res[i] <= limit);
+    if (keep.length === use.length) return { map: fit, rms: Math.sqrt(res.reduce((s, r) => s + r * r, 0) / res.length), inliers: use };
     use = keep;
   }
   return null;

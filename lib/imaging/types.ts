@@ -54,6 +54,8 @@ export interface Alignment {
   residualMm: number;
   /** Correlation of the aligned pair (1 = identical structure); used to refuse a wrong artwork. */
   correlation: number;
+  /** Share (0–1, score-weighted) of the fine registration patches that matched where the fit says. */
+  patchAgreement?: number;
   /** Affine map from artwork px to scan px: [a, b, c, d, e, f] with xs = a·x + b·y + c, ys = d·x + e·y + f. */
   artworkToScan: [number, number, number, number, number, number];
   /** Part of the artwork page the scan covers, in mm (bounding box; the warp's mask is exact). */

@@ -212,6 +212,26 @@ describe("alignScan refuses what is not a scan of this artwork", () => {
     await expect(alignScan(carton, scan)).rejects.toMatchObject({ code: "scan_mismatch", message: "the scan does not match this artwork" });
   });
 
+  it("refuses a design of the same brand in another layout, and a sheet of another size", async () => {
+    for (const other of [
+      { widthMm: 297, heightMm: 210, rows: 2, columns: 2 },
+      { widthMm: 210, heightMm: 297, rows: 3, columns: 2 },
+    ]) {
+      const raster = await rasterisePage((await makeCartonPdf(other)).pdf, { dpi: DPI });
+      const { scan } = placeOnGlass(raster, { rotationDeg: 1, background: GREY_LID });
+      await expect(alignScan(carton, scan)).rejects.toMatchObject({ code: "scan_mismatch" });
+    }
+  });
+
+  it("accepts the same artwork with a changed word (a defect, not another artwork)", async () => {
+    const changed = await rasterisePage((await makeCartonPdf({ widthMm: 297, heightMm: 210, rows: 2, columns: 3, changedWord: { up: 2 } })).pdf, { dpi: DPI });
+    const o: GlassOptions = { rotationDeg: 1 };
+    const sim = placeOnGlass(changed, o);
+    const { alignment } = await alignScan(carton, sim.scan);
+    expectAccurate(alignment, sim, carton, o);
+    expect(alignment.patchAgreement).toBeGreaterThan(0.9);
+  });
+
   it("refuses a scan of an unrelated design", async () => {
     const { scan } = placeOnGlass(stripes(carton), { rotationDeg: -0.5 });
     await expect(alignScan(carton, scan)).rejects.toMatchObject({ code: "scan_mismatch" });
