@@ -57,8 +57,15 @@ async function main() {
   rasterise.on("failed", (job, error) => log(`artwork revision ${job?.data.revisionId}: rasterising failed: ${error.message}`));
   mail.on("completed", (job, result) => log(`mail ${job.id}: sent to ${result.sent}`));
   mail.on("failed", (job, error) => log(`mail ${job?.id}: not sent yet (${error.message}); will retry`));
+  // While Redis is away every reconnect attempt fails: say so once per ten seconds, not on every try.
+  const lastSaid = new Map<string, number>();
   for (const w of workers) {
-    w.on("error", (error) => log(`${w.name}: ${error.message}`));
+    w.on("error", (error) => {
+      const key = `${w.name}: ${error.message}`;
+      if (Date.now() - (lastSaid.get(key) ?? 0) < 10_000) return;
+      lastSaid.set(key, Date.now());
+      log(key);
+    });
   }
 
   // Work recorded in the database but missing from Redis (Redis was down, or emptied) is queued again.

@@ -9,7 +9,27 @@ export function workerConnection(): Redis {
 }
 
 export function producerConnection(): Redis {
-  return new Redis(env.REDIS_URL, { maxRetriesPerRequest: 2, enableOfflineQueue: false, retryStrategy: backoff } satisfies RedisOptions);
+  return new Redis(env.REDIS_URL, {
+    maxRetriesPerRequest: 2,
+    enableOfflineQueue: false,
+    retryStrategy: (times) => Math.min(backoff(times), 1000),
+  } satisfies RedisOptions);
+}
+
+/** Wait briefly for a (re)connecting producer; a Redis that stays away is an error the caller reports. */
+export async function whenReady(connection: Redis, timeoutMs = 5000): Promise<void> {
+  if (connection.status === "ready") return;
+  await new Promise<void>((resolve, reject) => {
+    const onReady = () => {
+      clearTimeout(timer);
+      resolve();
+    };
+    const timer = setTimeout(() => {
+      connection.off("ready", onReady);
+      reject(new Error("The job queue (Redis) is not reachable"));
+    }, timeoutMs);
+    connection.once("ready", onReady);
+  });
 }
 
 /** Reconnect after 0.2 s, growing to 5 s: a restarted Redis is picked up again within seconds. */

@@ -3,7 +3,7 @@
 // user's upload may both enqueue one inspection without running it twice.
 import { Queue, type JobsOptions } from "bullmq";
 import type { Redis } from "ioredis";
-import { producerConnection } from "./connection";
+import { producerConnection, whenReady } from "./connection";
 
 export const QUEUE = { rasterise: "rasterise", inspect: "inspect", mail: "mail" } as const;
 
@@ -67,27 +67,32 @@ export async function closeQueues(): Promise<void> {
   q.connection.disconnect();
 }
 
-export async function enqueueRasterise(revisionId: number, dpi: number): Promise<void> {
-  await queues().rasterise.add("rasterise", { revisionId }, { jobId: jobIds.rasterise(revisionId, dpi) });
-}
-
 /**
- * Queue an inspection. A failed job of the same id is retried in place (Retry button); a finished one is
- * removed first so the inspection can run again.
+ * Make sure a job with this id is on its way. The database is the truth: a job kept as failed is retried in
+ * place with fresh attempts (Retry button), a job kept as completed is removed and added again (the work is
+ * wanted again), a waiting, delayed or active one is left alone.
  */
-export async function enqueueInspection(inspectionId: number): Promise<void> {
-  const queue = queues().inspect;
-  const id = jobIds.inspect(inspectionId);
-  const existing = await queue.getJob(id);
+async function ensureJob<T>(queue: Queue<T>, name: string, data: T, jobId: string): Promise<void> {
+  await whenReady(queues().connection);
+  const existing = await queue.getJob(jobId);
   if (existing) {
     const state = await existing.getState();
     if (state === "failed") return existing.retry("failed", { resetAttemptsMade: true, resetAttemptsStarted: true });
-    if (state === "completed") await existing.remove();
-    else return; // waiting, delayed or active: already on its way
+    if (state !== "completed" && state !== "unknown") return;
+    await existing.remove();
   }
-  await queue.add("inspect", { inspectionId }, { jobId: id });
+  await (queue as Queue).add(name, data, { jobId });
+}
+
+export async function enqueueRasterise(revisionId: number, dpi: number): Promise<void> {
+  await ensureJob(queues().rasterise, "rasterise", { revisionId }, jobIds.rasterise(revisionId, dpi));
+}
+
+export async function enqueueInspection(inspectionId: number): Promise<void> {
+  await ensureJob(queues().inspect, "inspect", { inspectionId }, jobIds.inspect(inspectionId));
 }
 
 export async function enqueueMail(data: MailData, run: number): Promise<void> {
+  await whenReady(queues().connection);
   await queues().mail.add(data.kind, data, { jobId: jobIds.mail(data, run) });
 }

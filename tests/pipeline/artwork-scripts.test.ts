@@ -10,7 +10,7 @@ import { approveArtwork, uploadArtwork } from "@/lib/pipeline/artworks";
 import { ensureBucket } from "@/storage/objects";
 import { pdfHasScript } from "@/worker/processors/pdf-scripts";
 import { makeFixture, multipart, until } from "./support/fixtures";
-import { startWorker, type WorkerProcess } from "./support/worker-process";
+import { emptyQueues, startWorker, type WorkerProcess } from "./support/worker-process";
 
 async function scriptedPdf(useObjectStreams: boolean) {
   const doc = await PDFDocument.create();
@@ -23,6 +23,7 @@ describe("artwork with JavaScript", () => {
   let worker: WorkerProcess;
   beforeAll(async () => {
     await ensureBucket();
+    await emptyQueues();
     worker = startWorker();
     await worker.waitFor(/worker ready/);
   });

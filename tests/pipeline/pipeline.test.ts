@@ -12,7 +12,7 @@ import { ensureBucket, listKeys } from "@/storage/objects";
 import { cartonArtwork, perfectScanPng } from "./support/artwork";
 import { makeFixture, multipart, until, type Fixture } from "./support/fixtures";
 import { pngHeaderClaiming } from "./support/files";
-import { maildev, startWorker, type WorkerProcess } from "./support/worker-process";
+import { emptyQueues, maildev, startWorker, type WorkerProcess } from "./support/worker-process";
 
 let actor: Actor;
 vi.mock("@/lib/auth/session", () => ({ actorOrThrow: async () => actor }));
@@ -47,6 +47,7 @@ const finished = (scanId: number) =>
 describe("the inspection pipeline, end to end", () => {
   beforeAll(async () => {
     await ensureBucket();
+    await emptyQueues();
     fx = await makeFixture({ rows: 1, columns: 2 });
     await db.update(jobs).set({ artworkDpi: DPI }).where(eq(jobs.id, fx.jobId));
     ({ pdf } = await cartonArtwork({ rows: 1, columns: 2 }));

@@ -66,3 +66,20 @@ export const maildev = {
     return (await res.json()) as never;
   },
 };
+
+/**
+ * Empty the pipeline's queues. The test database is created afresh per run while Redis keeps its jobs, so
+ * old job ids ("inspection-1") would otherwise name rows of the new database.
+ */
+export async function emptyQueues(): Promise<void> {
+  const { Queue } = await import("bullmq");
+  const { QUEUE } = await import("@/lib/queue/queues");
+  const { workerConnection } = await import("@/lib/queue/connection");
+  const connection = workerConnection();
+  for (const name of Object.values(QUEUE)) {
+    const queue = new Queue(name, { connection });
+    await queue.obliterate({ force: true });
+    await queue.close();
+  }
+  connection.disconnect();
+}
