@@ -11,7 +11,7 @@
 // Two ways round, chosen per candidate by size: when the whole sheet fits on the scan (sheet smaller than the
 // glass, background around it) the rotated artwork is looked for in the scan; when the scan sees only part
 // of the sheet (a press sheet larger than the flatbed) the scan, turned back, is looked for in the artwork,
-// which is padded with paper so that the scan window may also run past the sheet's edge.
+// which is padded with the lid's colour so that the scan window may also run past the sheet's edge.
 import { apply, invert, rotation, translate, type Affine } from "./align-affine";
 import { withMats, type OpenCv } from "./opencv";
 import type { GreyLevel } from "./pyramid";
@@ -22,6 +22,8 @@ export interface CoarseResult {
   /** Turn of the sheet in degrees (quarter turn + angle), clockwise on screen. */
   angleDeg: number;
   score: number;
+  /** Best score of another placement (another local maximum away from the peak) at the same angle. */
+  runnerUp: number;
 }
 
 const ANGLES = [-6, -4.5, -3, -1.5, 0, 1.5, 3, 4.5, 6];
@@ -32,8 +34,11 @@ export function coarsePlacement(cv: OpenCv, art: GreyLevel, scan: GreyLevel, rat
   return withMats((keep) => {
     const artMat = keep(cv.matFromArray(art.height, art.width, cv.CV_32F, art.data));
     const scanMat = keep(cv.matFromArray(scan.height, scan.width, cv.CV_32F, scan.data));
-    const artFill = borderMean(art), scanFill = borderMean(scan);
-    const tryAngle = (deg: number) => candidate(cv, keep, artMat, scanMat, art, scan, artFill, scanFill, deg, ratio);
+    // Whatever lies outside the sheet is lid: fill and pad with the scan's border colour, so that at the right
+    // placement the lid in the scan meets lid-coloured padding (a dark lid then marks the sheet edge instead
+    // of fighting the correlation).
+    const lid = borderMean(scan);
+    const tryAngle = (deg: number) => candidate(cv, keep, artMat, scanMat, art, scan, lid, deg, ratio);
 
     let best: CoarseResult | null = null;
     let bestScores: number[] = [];
@@ -66,8 +71,7 @@ function candidate(
   scanMat: unknown,
   art: GreyLevel,
   scan: GreyLevel,
-  artFill: number,
-  scanFill: number,
+  lid: number,
   deg: number,
   ratio: number,
 ): CoarseResult {
@@ -78,22 +82,22 @@ function candidate(
     // Rotated artwork sought in the scan (padded a little so a sheet as large as the glass still has play).
     const m = translate(turn, -box.x, -box.y);
     const tw = Math.ceil(box.w), th = Math.ceil(box.h);
-    const templ = keep(warp(cv, artMat, m, tw, th, artFill));
+    const templ = keep(warp(cv, artMat, m, tw, th, lid));
     const px = Math.max(0, tw - scan.width) + Math.ceil(0.05 * tw) + 2;
     const py = Math.max(0, th - scan.height) + Math.ceil(0.05 * th) + 2;
-    const { x, y, score } = match(cv, keep, scanMat, templ, px, py);
-    return { map: translate(m, x - px, y - py), angleDeg: deg, score };
+    const { x, y, score, runnerUp } = match(cv, keep, scanMat, templ, px, py);
+    return { map: translate(m, x - px, y - py), angleDeg: deg, score, runnerUp };
   }
-  // Scan, turned back, sought in the artwork padded with paper on every side.
+  // Scan, turned back, sought in the artwork padded with lid colour on every side.
   const back = invert(turn);
   const sbox = bounds(back, scan.width, scan.height);
   const n = translate(back, -sbox.x, -sbox.y);
   const tw = Math.ceil(sbox.w), th = Math.ceil(sbox.h);
-  const templ = keep(warp(cv, scanMat, n, tw, th, scanFill));
+  const templ = keep(warp(cv, scanMat, n, tw, th, lid));
   const px = Math.max(0, tw - art.width) + Math.ceil(0.3 * tw) + 2;
   const py = Math.max(0, th - art.height) + Math.ceil(0.3 * th) + 2;
-  const { x, y, score } = match(cv, keep, artMat, templ, px, py, artFill);
-  return { map: invert(translate(n, x - px, y - py)), angleDeg: deg, score };
+  const { x, y, score, runnerUp } = match(cv, keep, artMat, templ, px, py, lid);
+  return { map: invert(translate(n, x - px, y - py)), angleDeg: deg, score, runnerUp };
 }
 
 function warp(cv: OpenCv, src: unknown, m: Affine, w: number, h: number, fill: number) {
@@ -127,7 +131,18 @@ function match(
   for (let i = 1; i < r.length; i++) if (r[i] > r[bi] || !Number.isFinite(r[bi])) bi = i;
   const bx = bi % w, by = (bi - bx) / w;
   const at = (x: number, y: number) => r[Math.min(h - 1, Math.max(0, y)) * w + Math.min(w - 1, Math.max(0, x))];
-  return { x: bx + peak(at(bx - 1, by), r[bi], at(bx + 1, by)), y: by + peak(at(bx, by - 1), r[bi], at(bx, by + 1)), score: r[bi] };
+  // The best other local maximum away from the peak: as high as the peak means the scan fits two places
+  // equally well (a window onto identical ups with no sheet edge or margin in it).
+  const radius = Math.max(4, Math.round(0.06 * Math.min(templ.rows, templ.cols)));
+  let runnerUp = -1;
+  for (let y = 1; y < h - 1; y++) {
+    for (let x = 1; x < w - 1; x++) {
+      const v = r[y * w + x];
+      if (v <= runnerUp || Math.hypot(x - bx, y - by) <= radius) continue;
+      if (v >= r[y * w + x - 1] && v >= r[y * w + x + 1] && v >= r[(y - 1) * w + x] && v >= r[(y + 1) * w + x]) runnerUp = v;
+    }
+  }
+  return { x: bx + peak(at(bx - 1, by), r[bi], at(bx + 1, by)), y: by + peak(at(bx, by - 1), r[bi], at(bx, by + 1)), score: r[bi], runnerUp };
 }
 
 /** Offset of a parabola's vertex through three equally spaced samples, within ±0.5. */

@@ -42,6 +42,12 @@ export interface AlignResult {
  */
 const MIN_CORRELATION = 0.7;
 const MIN_AGREEMENT = 0.5;
+/**
+ * A second placement scoring within this of the best means the scan fits two places: a window onto identical
+ * ups with no sheet edge or margin in it. Measured: 0.0004–0.014 for such windows, ≥ 0.05 once a sheet edge
+ * is in the window, and no second peak at all when the whole sheet is on the glass.
+ */
+const AMBIGUITY_GAP = 0.025;
 /** Grey-level standard deviation (0–255) under which the scan shows nothing printed. */
 const MIN_SCAN_CONTRAST = 2;
 /** Pixels of the coarse level (the rotation sweep, ~1 ms a candidate). */
@@ -78,6 +84,7 @@ export async function alignScan(artwork: ArtworkRaster, scan: ScanImage, opts: A
   const ratio = scan.dpi / scanC.k / (artwork.dpi / artC.k);
   const coarse = coarsePlacement(cv, artC, scanC, ratio);
   let map = levelMapToFull(coarse.map, artC.k, scanC.k);
+
   lap("coarse");
 
   // ECC on the coarse level (cheap, widens the basin), then on the twice finer one; the patches do the rest.
@@ -91,6 +98,10 @@ export async function alignScan(artwork: ArtworkRaster, scan: ScanImage, opts: A
   map = refined.map;
   lap("patches");
   if (refined.agreement !== null && refined.agreement < MIN_AGREEMENT) throw mismatch();
+  // Only a scan that matches is worth this question: it fits, but would it fit elsewhere as well?
+  if (coarse.runnerUp > coarse.score - AMBIGUITY_GAP) {
+    throw new ImagingError("scan_ambiguous", "the scan shows only repeated parts of the sheet and cannot be placed; include a sheet edge or margin in the scan");
+  }
 
   const alignment = describe(artwork, scan, map, rho, refined.residualPx, refined.field);
   if (refined.agreement !== null) alignment.patchAgreement = round(refined.agreement, 1e4);

@@ -96,8 +96,8 @@ describe("alignScan when the scan sees only part of the sheet", () => {
     expectAccurate(alignment, sim, carton, o, truth);
   });
 
-  it("locates a window in the middle of a larger sheet, turned a quarter", async () => {
-    const o: GlassOptions = { rotationDeg: -88.5, sizeMm: { w: 200, h: 250 }, centreMm: { x: 95, y: 140 }, background: GREY_LID };
+  it("locates a window onto one corner of a larger sheet, turned a quarter, dark lid beyond the edges", async () => {
+    const o: GlassOptions = { rotationDeg: -88.5, sizeMm: { w: 200, h: 250 }, centreMm: { x: 160, y: 225 }, background: GREY_LID };
     const { sim, alignment } = await alignCase(fifteenUp, o);
     const truth = pxRectToMm(coveredRect(sim.artworkToScan, fifteenUp.width, fifteenUp.height, sim.scan.width, sim.scan.height)!, DPI);
     for (const k of ["x", "y", "w", "h"] as const) expect(Math.abs(alignment.coveredMm[k] - truth[k])).toBeLessThan(0.2);
@@ -106,6 +106,18 @@ describe("alignScan when the scan sees only part of the sheet", () => {
 });
 
 describe("alignScan on a 15-up sheet of identical ups", () => {
+  it("places a window that includes the sheet's corner", async () => {
+    const o: GlassOptions = { rotationDeg: 0.5, sizeMm: { w: 180, h: 200 }, centreMm: { x: 215, y: 155 } };
+    const { sim, alignment } = await alignCase(fifteenUp, o);
+    const truth = pxRectToMm(coveredRect(sim.artworkToScan, fifteenUp.width, fifteenUp.height, sim.scan.width, sim.scan.height)!, DPI);
+    expectAccurate(alignment, sim, fifteenUp, o, truth);
+  });
+
+  it("refuses to guess where a window onto identical ups only, with no edge or margin, belongs", async () => {
+    const { scan } = placeOnGlass(fifteenUp, { rotationDeg: 0.5, sizeMm: { w: 150, h: 150 }, centreMm: { x: 130, y: 100 } });
+    await expect(alignScan(fifteenUp, scan)).rejects.toMatchObject({ code: "scan_ambiguous" });
+  });
+
   it("does not lock one up off, whichever way round the sheet lies", async () => {
     for (const o of [
       { rotationDeg: 0.9, centreMm: { x: 230, y: 160 }, sizeMm: { w: 445, h: 330 } },
