@@ -22,7 +22,9 @@ ensure_node_modules() {
   if [[ ! -d "$ROOT/node_modules/next" ]]; then
     echo "Installing npm dependencies…"
     if [[ -f "$ROOT/package-lock.json" ]]; then
-      (cd "$ROOT" && npm ci --no-audit --no-fund)
+      # npm ci refuses a lock without entries for optional platform packages the registry lacks; npm install
+      # then installs the same locked versions.
+      (cd "$ROOT" && { npm ci --no-audit --no-fund || npm install --no-audit --no-fund; })
     else
       (cd "$ROOT" && npm install --no-audit --no-fund)
     fi
