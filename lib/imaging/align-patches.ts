@@ -8,39 +8,34 @@
 // is fitted through all of them, dropping outliers (a defect or the sheet number under a window). Two passes:
 // the second starts from the first fit, so the offsets are near zero, where the parabola's bias vanishes.
 // The search radius is a millimetre, far below the pitch of repeated ups, so no window can lock onto the wrong up.
-// The same measurement on a denser grid, relative to the final affine, gives the optional local field.
+// The same measurement on a denser grid, relative to the final affine, gives the optional local field
+// (align-field.ts).
 import { apply, compose, fitAffine, type Affine } from "./align-affine";
 import { peak } from "./align-coarse";
 import { withMats, type OpenCv } from "./opencv";
-import { levelToFull, levelWindow } from "./pyramid";
-import type { DisplacementField, RgbaImage } from "./types";
+import { levelPixel, levelToFull, levelWindow } from "./pyramid";
+import type { RgbaImage } from "./types";
 
-export type { DisplacementField };
-
-type Image = RgbaImage & { dpi: number };
+export type Image = RgbaImage & { dpi: number };
 
 /** The artwork at the fine level, read window by window from the RGBA (see levelWindow). */
-interface FineArtwork {
+export interface FineArtwork {
   width: number;
   height: number;
   window(x0: number, y0: number, w: number, h: number, out: Float32Array): Float32Array;
+  at(x: number, y: number): number;
 }
 
-const PATCH = 64;
-/** Sampling step of the structure measure, fine level px. */
-const STRIDE = 4;
+export const PATCH = 64;
 const FINE_DPI = 150;
 const GRID = 6;
-const FIELD_CELL_MM = 20;
-/** A local offset this far from its neighbours' is a defect under the patch, not paper stretch. */
-const OUTLIER_MM = 0.15;
 const MIN_SCORE = 0.6;
 /** Fewest structured sites for a patch fit. */
 const MIN_SITES = 6;
 /** Largest search radius, fine-level px (the first pass: 1.2 mm at 150 dpi). */
-const MAX_RADIUS = 8;
+export const MAX_RADIUS = 8;
 
-interface Measure {
+export interface Measure {
   /** Patch centre, full artwork px. */
   at: [number, number];
   /** Offset o (full artwork px): the scan shows artwork point p at map(p + o). */
@@ -50,12 +45,13 @@ interface Measure {
   score: number;
 }
 
-export function refineOnPatches(cv: OpenCv, artwork: Image, scan: Image, map: Affine, opts: { localField: boolean }) {
+export function refineOnPatches(cv: OpenCv, artwork: Image, scan: Image, map: Affine) {
   const kF = Math.max(1, Math.round(artwork.dpi / FINE_DPI));
   const art: FineArtwork = {
     width: Math.floor(artwork.width / kF),
     height: Math.floor(artwork.height / kF),
     window: (x0, y0, w, h, out) => levelWindow(artwork, kF, x0, y0, w, h, out),
+    at: (x, y) => levelPixel(artwork, kF, x, y),
   };
   const toFull = levelToFull(kF);
   const cover = coveredLevelRect(map, toFull, art, scan);
@@ -64,7 +60,7 @@ export function refineOnPatches(cv: OpenCv, artwork: Image, scan: Image, map: Af
   // scan of this artwork, low for a similar-looking design, whose patches find nothing or disagree.
   let agreement: number | null = null;
   if (cover) {
-    const sites = chooseSites(art, cover, GRID, true);
+    const sites = chooseSites(art, cover, GRID, GRID).at;
     for (const radiusMm of [1.2, 0.3]) {
       const radius = Math.min(MAX_RADIUS, Math.max(2, Math.ceil((radiusMm * artwork.dpi) / kF / 25.4)));
       const found = measure(cv, art, scan, map, toFull, sites, radius);
@@ -75,9 +71,8 @@ export function refineOnPatches(cv: OpenCv, artwork: Image, scan: Image, map: Af
       residualPx = fit.rms;
     }
   }
-  let field: DisplacementField | undefined;
-  if (opts.localField && cover) field = localField(cv, art, scan, map, toFull, cover, artwork.dpi / kF);
-  return { map, residualPx: Number.isFinite(residualPx) ? residualPx : 0, field, agreement };
+  // The fine level and covered area go back with the result for the optional local field (align-field.ts).
+  return { map, residualPx: Number.isFinite(residualPx) ? residualPx : 0, agreement, fine: cover ? { art, toFull, cover, dpi: artwork.dpi / kF } : null };
 }
 
 /** Covered part of the fine level, inset so whole patches plus their search windows stay on page and scan. */
@@ -103,45 +98,42 @@ function coveredLevelRect(map: Affine, toFull: Affine, art: FineArtwork, scan: R
   return { x0, y0, x1, y1 };
 }
 
-type Rect = { x0: number; y0: number; x1: number; y1: number };
+export type Rect = { x0: number; y0: number; x1: number; y1: number };
 
-/** Patch centres (fine level px): per grid cell, the most structured of 3 × 3 positions (or the cell centre). */
-function chooseSites(art: FineArtwork, r: Rect, grid: number, pick: boolean, cols = grid, rows = grid): [number, number][] {
-  const sites: [number, number][] = [];
+/** Patch centres (fine level px) and their grid cells: per cell the most structured of 3 × 3 positions. */
+export function chooseSites(art: FineArtwork, r: Rect, cols: number, rows: number, stride = 4): { at: [number, number][]; cell: number[] } {
+  const at: [number, number][] = [], cell: number[] = [];
   const cw = (r.x1 - r.x0) / cols, ch = (r.y1 - r.y0) / rows;
   for (let j = 0; j < rows; j++) {
     for (let i = 0; i < cols; i++) {
       const cx = r.x0 + (i + 0.5) * cw, cy = r.y0 + (j + 0.5) * ch;
-      if (!pick) {
-        sites.push([Math.round(cx), Math.round(cy)]);
-        continue;
-      }
       let best: [number, number] = [Math.round(cx), Math.round(cy)], bestS = -1;
       for (const fy of [-0.3, 0, 0.3]) {
         for (const fx of [-0.3, 0, 0.3]) {
           const x = Math.round(cx + fx * cw), y = Math.round(cy + fy * ch);
-          const s = structure(art, x, y);
+          const s = structure(art, x, y, stride);
           if (s > bestS) [bestS, best] = [s, [x, y]];
         }
       }
-      if (bestS > 1) sites.push(best);
+      if (bestS > 1) {
+        at.push(best);
+        cell.push(j * cols + i);
+      }
     }
   }
-  return sites;
+  return { at, cell };
 }
 
-/** Smaller eigenvalue of the structure tensor over the patch around (x, y), sampled every STRIDE pixels. */
-function structure(art: FineArtwork, x: number, y: number): number {
+/** Smaller eigenvalue of the structure tensor over the patch around (x, y), sampled every `stride` pixels. */
+function structure(art: FineArtwork, x: number, y: number, stride: number): number {
   const h = PATCH / 2;
   if (x - h < 1 || y - h < 1 || x + h >= art.width - 1 || y + h >= art.height - 1) return -1;
-  const n = PATCH / STRIDE, row = new Float32Array(3), col = new Float32Array(3);
+  const n = PATCH / stride;
   let sxx = 0, syy = 0, sxy = 0;
   for (let j = 0; j < n; j++) {
     for (let i = 0; i < n; i++) {
-      const u = x - h + i * STRIDE, v = y - h + j * STRIDE;
-      art.window(u - 1, v, 3, 1, row);
-      art.window(u, v - 1, 1, 3, col);
-      const gx = row[2] - row[0], gy = col[2] - col[0];
+      const u = x - h + i * stride, v = y - h + j * stride;
+      const gx = art.at(u + 1, v) - art.at(u - 1, v), gy = art.at(u, v + 1) - art.at(u, v - 1);
       sxx += gx * gx;
       syy += gy * gy;
       sxy += gx * gy;
@@ -157,7 +149,7 @@ function structure(art: FineArtwork, x: number, y: number): number {
  * Locate each site's patch in the scan seen through `map`, within ±radius of its prior offset (fine level px).
  * Offsets returned in full artwork px, prior included.
  */
-function measure(
+export function measure(
   cv: OpenCv,
   art: FineArtwork,
   scan: Image,
@@ -249,72 +241,3 @@ function residuals(found: Measure[], map: Affine, fit: Affine): number[] {
     return Math.hypot(q[0] - p[0], q[1] - p[1]) / s;
   });
 }
-
-/**
- * Offsets relative to the final affine: measured at structured sites on a grid of FIELD_CELL_MM cells (twice,
- * the second time from the first result so the sub-pixel peak is unbiased), lone outliers dropped, then spread
- * onto a regular grid of nodes by Gaussian-weighted averaging (paper stretch is smooth).
- */
-function localField(cv: OpenCv, art: FineArtwork, scan: Image, map: Affine, toFull: Affine, r: Rect, dpi: number): DisplacementField | undefined {
-  const cell = (FIELD_CELL_MM * dpi) / 25.4;
-  const cols = Math.max(2, Math.round((r.x1 - r.x0) / cell) + 1), rows = Math.max(2, Math.round((r.y1 - r.y0) / cell) + 1);
-  const sites = chooseSites(art, r, 0, true, cols, rows);
-  const radius = Math.min(MAX_RADIUS, Math.max(2, Math.ceil((1.0 * dpi) / 25.4)));
-  const first = measure(cv, art, scan, map, toFull, sites, radius);
-  const again = measure(cv, art, scan, map, toFull, first.map((m) => sites[m.site]), 2, first.map((m) => [m.off[0] / toFull[0], m.off[1] / toFull[4]]));
-  const found = dropLoneOutliers(again, ((OUTLIER_MM * dpi) / 25.4) * toFull[0]);
-  if (found.length < 4) return undefined;
-  const [ox, oy] = apply(toFull, r.x0, r.y0);
-  const stepX = ((r.x1 - r.x0) / (cols - 1)) * toFull[0], stepY = ((r.y1 - r.y0) / (rows - 1)) * toFull[4];
-  const step = Math.min(stepX, stepY);
-  const nc = Math.floor(((r.x1 - r.x0) * toFull[0]) / step) + 1, nr = Math.floor(((r.y1 - r.y0) * toFull[4]) / step) + 1;
-  const dx: number[] = [], dy: number[] = [];
-  const sigma2 = 2 * (0.6 * step) ** 2;
-  for (let j = 0; j < nr; j++) {
-    for (let i = 0; i < nc; i++) {
-      const x = ox + i * step, y = oy + j * step;
-      const [vx, vy] = localValue(found, x, y, sigma2);
-      dx.push(round3(vx));
-      dy.push(round3(vy));
-    }
-  }
-  return { originX: ox, originY: oy, step, cols: nc, rows: nr, dx, dy };
-}
-
-/**
- * Offset at (x, y) by Gaussian-weighted local linear regression over the measurements (first order, so nodes at
- * the edge of the measured area are extrapolated along the trend instead of pulled towards the middle).
- */
-function localValue(found: Measure[], x: number, y: number, sigma2: number): [number, number] {
-  const w = found.map((m) => Math.exp(-((m.at[0] - x) ** 2 + (m.at[1] - y) ** 2) / sigma2));
-  const sw = w.reduce((a, b) => a + b, 0);
-  if (sw < 1e-6) return [0, 0];
-  try {
-    const fit = fitAffine(
-      found.map((m) => [m.at[0] - x, m.at[1] - y]),
-      found.map((m) => m.off),
-      w,
-    );
-    if (Number.isFinite(fit[2]) && Number.isFinite(fit[5])) return [fit[2], fit[5]];
-  } catch {
-    // Too few or collinear measurements nearby: fall back to the weighted mean.
-  }
-  return [found.reduce((a, m, i) => a + w[i] * m.off[0], 0) / sw, found.reduce((a, m, i) => a + w[i] * m.off[1], 0) / sw];
-}
-
-/** Drops a measurement far from the median of its eight nearest neighbours (a defect or variable data under it). */
-function dropLoneOutliers(found: Measure[], limitPx: number): Measure[] {
-  return found.filter((m) => {
-    const near = found
-      .filter((o) => o !== m)
-      .map((o) => ({ o, d: (o.at[0] - m.at[0]) ** 2 + (o.at[1] - m.at[1]) ** 2 }))
-      .sort((a, b) => a.d - b.d)
-      .slice(0, 8)
-      .map((e) => e.o);
-    if (near.length < 3) return true;
-    const med = (k: 0 | 1) => near.map((o) => o.off[k]).sort((a, b) => a - b)[Math.floor(near.length / 2)];
-    return Math.hypot(m.off[0] - med(0), m.off[1] - med(1)) <= limitPx;
-  });
-}
-
-const round3 = (v: number) => Math.round(v * 1000) / 1000;

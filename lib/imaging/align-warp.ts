@@ -2,8 +2,7 @@
 // is ~98 megapixels, so callers work in tiles and nothing full-size beyond the 8-bit result is allocated.
 // Plain JavaScript on purpose: OpenCV's warp would first need the whole scan copied into its 1 GB heap.
 import type { Affine } from "./align-affine";
-import type { DisplacementField } from "./align-patches";
-import type { Alignment, RgbaImage } from "./types";
+import type { Alignment, DisplacementField, RgbaImage } from "./types";
 
 export interface PxRegion {
   x: number;

@@ -15,10 +15,11 @@
 // is reported relative to it (1 = the sheet is scanned at its true size).
 import { coveredRect, compose, invert, pxRectToMm, scaling, translate, type Affine } from "./align-affine";
 import { coarsePlacement } from "./align-coarse";
-import { refineOnPatches, type DisplacementField } from "./align-patches";
+import { localField } from "./align-field";
+import { refineOnPatches } from "./align-patches";
 import { loadOpenCv, openCvMessage, withMats, type OpenCv } from "./opencv";
 import { greyLevel, halve, levelToFull, type GreyLevel } from "./pyramid";
-import { ImagingError, type Alignment, type ArtworkRaster, type RgbaImage, type ScanImage } from "./types";
+import { ImagingError, type Alignment, type ArtworkRaster, type DisplacementField, type RgbaImage, type ScanImage } from "./types";
 
 export { warpScanToArtwork } from "./align-warp";
 export type { DisplacementField };
@@ -94,7 +95,7 @@ export async function alignScan(artwork: ArtworkRaster, scan: ScanImage, opts: A
   lap("ecc");
   if (!(rho >= MIN_CORRELATION)) throw mismatch();
 
-  const refined = refineOnPatches(cv, artwork, scan, map, { localField: opts.localRefinement === true });
+  const refined = refineOnPatches(cv, artwork, scan, map);
   map = refined.map;
   lap("patches");
   if (refined.agreement !== null && refined.agreement < MIN_AGREEMENT) throw mismatch();
@@ -103,7 +104,10 @@ export async function alignScan(artwork: ArtworkRaster, scan: ScanImage, opts: A
     throw new ImagingError("scan_ambiguous", "the scan shows only repeated parts of the sheet and cannot be placed; include a sheet edge or margin in the scan");
   }
 
-  const alignment = describe(artwork, scan, map, rho, refined.residualPx, refined.field);
+  const f = refined.fine;
+  const field = opts.localRefinement && f ? localField(cv, f.art, scan, map, f.toFull, f.cover, f.dpi) : undefined;
+  if (opts.localRefinement) lap("field");
+  const alignment = describe(artwork, scan, map, rho, refined.residualPx, field);
   if (refined.agreement !== null) alignment.patchAgreement = round(refined.agreement, 1e4);
   return { alignment, timingsMs: timings };
 }

@@ -64,6 +64,18 @@ export function levelWindow(img: RgbaImage, k: number, x0: number, y0: number, w
   return out;
 }
 
+/** One pixel of the level of block size k, from the RGBA (edge values outside). */
+export function levelPixel(img: RgbaImage, k: number, x: number, y: number): number {
+  const src = img.data, iw = img.width, ih = img.height;
+  const x0 = Math.min(iw - k, Math.max(0, x * k)), y0 = Math.min(ih - k, Math.max(0, y * k));
+  let s = 0;
+  for (let dy = 0; dy < k; dy++) {
+    let p = ((y0 + dy) * iw + x0) * 4;
+    for (let dx = 0; dx < k; dx++, p += 4) s += 0.299 * src[p] + 0.587 * src[p + 1] + 0.114 * src[p + 2];
+  }
+  return s / (k * k);
+}
+
 /** Level pixel → full-resolution pixel (pixel centres at integer coordinates). */
 export function levelToFull(k: number): Affine {
   const o = (k - 1) / 2;
