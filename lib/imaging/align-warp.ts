@@ -32,17 +32,18 @@ export function warpScanToArtwork(
   for (let row = 0; row < h; row++) {
     const y = region.y + row;
     if (field) fieldRow(field, region.x, y, dx!, dy!);
-    for (let col = 0; col < w; col++) {
-      let ax = region.x + col, ay = y;
+    // Scan position of the row's first pixel and its step per column (the affine part, exact in doubles).
+    let xs = m[0] * region.x + m[1] * y + m[2], ys = m[3] * region.x + m[4] * y + m[5];
+    for (let col = 0; col < w; col++, xs += m[0], ys += m[3]) {
+      let px = xs, py = ys;
       if (field) {
-        ax += dx![col];
-        ay += dy![col];
+        px += m[0] * dx![col] + m[1] * dy![col];
+        py += m[3] * dx![col] + m[4] * dy![col];
       }
-      const xs = m[0] * ax + m[1] * ay + m[2];
-      const ys = m[3] * ax + m[4] * ay + m[5];
-      if (!(xs >= -0.5 && ys >= -0.5 && xs <= sw - 0.5 && ys <= sh - 0.5)) continue;
-      const cx = Math.min(Math.max(xs, 0), sw - 1), cy = Math.min(Math.max(ys, 0), sh - 1);
-      const x0 = Math.min(Math.floor(cx), sw - 2 < 0 ? 0 : sw - 2), y0 = Math.min(Math.floor(cy), sh - 2 < 0 ? 0 : sh - 2);
+      if (!(px >= -0.5 && py >= -0.5 && px <= sw - 0.5 && py <= sh - 0.5)) continue;
+      // Clamp to the outer pixel centres, then interpolate between the four neighbours.
+      const cx = px < 0 ? 0 : px > sw - 1 ? sw - 1 : px, cy = py < 0 ? 0 : py > sh - 1 ? sh - 1 : py;
+      const x0 = cx >= sw - 1 ? Math.max(0, sw - 2) : cx | 0, y0 = cy >= sh - 1 ? Math.max(0, sh - 2) : cy | 0;
       const fx = sw > 1 ? cx - x0 : 0, fy = sh > 1 ? cy - y0 : 0;
       const p00 = (y0 * sw + x0) * 4;
       const p01 = sw > 1 ? p00 + 4 : p00;
