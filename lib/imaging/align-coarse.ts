@@ -1,5 +1,5 @@
 // COARSE placement of the sheet: which way round it lies on the glass, its angle to within a degree or so and
-// where it is, by whole-page correlation on small grey levels (about 15 000 pixels each) over a sweep of
+// where it is, by whole-page correlation on small grey levels (about 4 000 pixels each) over a sweep of
 // rotations: the four quarter turns × −6° … +6° in 1.5° steps.
 //
 // Why whole-page correlation rather than feature matching: a press sheet carries many identical ups, and the

@@ -1,11 +1,11 @@
 // ALIGN: register a scan of a press sheet to its artwork raster, coarse to fine.
 //
-//  1. coarse placement (align-coarse.ts): whole-page correlation on ~15 000-pixel grey levels over the four
-//     quarter turns × ±6° — robust to repeated ups, where feature matching locks an up off;
+//  1. coarse placement (align-coarse.ts): whole-page correlation on ~4 000-pixel grey levels over the four
+//     quarter turns × ±6° (recovers up to ±7°) — robust to repeated ups, where feature matching locks an up off;
 //  2. affine ECC (OpenCV findTransformECC, Evangelidis & Psarakis 2008) on that level and on one twice as
-//     fine. ECC is exact sub-pixel and its correlation refuses a wrong artwork, but costs ~80 ns per pixel
-//     and iteration in the WebAssembly build (1.3 s on 1000 × 1000), so it only runs on ~15 000- and
-//     ~60 000-pixel levels, cut to the part of the page the scan covers;
+//     fine. ECC is exact sub-pixel and its correlation refuses a plainly wrong artwork, but costs ~80 ns per
+//     pixel and iteration in the WebAssembly build (1.3 s on 1000 × 1000), so it only runs on ~4 000- and
+//     ~16 000-pixel levels, cut to the part of the page the scan covers;
 //  3. patches at the comparison resolution (align-patches.ts): small windows spread over the covered area,
 //     each located to a fraction of a pixel, and a robust affine fit through them. This is where the last
 //     tenth of a millimetre comes from, at a few per cent of the cost of a full-resolution ECC;
@@ -35,7 +35,7 @@ export interface AlignResult {
 }
 
 /**
- * Refusal of a wrong artwork, in two steps. Below this ECC correlation on the ~60 000-pixel level the scan is
+ * Refusal of a wrong artwork, in two steps. Below this ECC correlation on the ~16 000-pixel level the scan is
  * plainly something else (measured on simulated sheets: 0.42 for another imposition; ≥ 0.99 for the right one).
  * A design of the same brand in another layout still reached 0.79 (and a sheet of another size 0.94) there, so
  * the fine patches decide too: the score-weighted share of structured sites that find their patch where the fit
@@ -85,12 +85,12 @@ export async function alignScan(artwork: ArtworkRaster, scan: ScanImage, opts: A
   const ratio = scan.dpi / scanC.k / (artwork.dpi / artC.k);
   const coarse = coarsePlacement(cv, artC, scanC, ratio);
   let map = levelMapToFull(coarse.map, artC.k, scanC.k);
-
   lap("coarse");
 
   // ECC on the coarse level (cheap, widens the basin), then on the twice finer one; the patches do the rest.
-  map = ecc(cv, artC, scanC, map, 50).map;
-  const { map: eccMap, rho } = ecc(cv, artE, scanE, map, 30);
+  const nominal = scan.dpi / artwork.dpi;
+  map = ecc(cv, artC, scanC, map, nominal, 50).map;
+  const { map: eccMap, rho } = ecc(cv, artE, scanE, map, nominal, 30);
   map = eccMap;
   lap("ecc");
   if (!(rho >= MIN_CORRELATION)) throw mismatch();
@@ -140,7 +140,7 @@ function describe(artwork: ArtworkRaster, scan: ScanImage, map: Affine, rho: num
  * cut to the part the scan covers first: ECC's cost is per template pixel, and a partial scan of a large sheet
  * would otherwise pay for the whole page.
  */
-function ecc(cv: OpenCv, art: GreyLevel, scan: GreyLevel, map: Affine, iterations: number) {
+function ecc(cv: OpenCv, art: GreyLevel, scan: GreyLevel, map: Affine, nominal: number, iterations: number) {
   const lm = compose(invert(levelToFull(scan.k)), compose(map, levelToFull(art.k)));
   const cover = coveredRect(lm, art.width, art.height, scan.width, scan.height);
   if (!cover) throw mismatch();
@@ -162,12 +162,16 @@ function ecc(cv: OpenCv, art: GreyLevel, scan: GreyLevel, map: Affine, iteration
       rho = cv.findTransformECC(templ, input, warp, cv.MOTION_AFFINE, criteria, mask, 5);
     } catch (e) {
       // ECC gives up when the images do not correlate at all ("images may be uncorrelated").
-      if (/uncorrelated|non-overlapped|converge/i.test(openCvMessage(cv, e))) throw mismatch();
-      throw e;
+      const message = openCvMessage(cv, e);
+      if (/uncorrelated|non-overlapped|converge/i.test(message)) throw mismatch();
+      throw new Error(`ECC registration failed: ${message}`);
     }
     const w = Array.from(warp.data32F as Float32Array) as Affine;
-    const levelMap = compose(w, translate(scaling(1), -x0, -y0));
-    return { map: levelMapToFull(levelMap, art.k, scan.k), rho };
+    const found = levelMapToFull(compose(w, translate(scaling(1), -x0, -y0)), art.k, scan.k);
+    // A fit that has run off (folded, or beyond ±10 % of the nominal size) is no registration at all.
+    const det = found[0] * found[4] - found[1] * found[3];
+    if (!found.every(Number.isFinite) || !(det > 0) || Math.abs(Math.sqrt(det) / nominal - 1) > 0.1) throw mismatch();
+    return { map: found, rho };
   });
 }
 
