@@ -5,6 +5,7 @@ import { eq } from "drizzle-orm";
 import { z } from "zod";
 import { db } from "../../db/client";
 import { users } from "../../db/schema";
+import { recordAudit } from "../audit";
 import type { Actor } from "./policy";
 import { decoy, verifyPassword } from "./password";
 
@@ -31,7 +32,10 @@ export async function verifyCredentials(input: unknown): Promise<Actor | null> {
   }
   const matches = await verifyPassword(user.passwordHash, password);
   if (!matches || user.disabled) return null;
-  await db.update(users).set({ lastSignInAt: new Date() }).where(eq(users.id, user.id));
+  await db.transaction(async (tx) => {
+    await tx.update(users).set({ lastSignInAt: new Date() }).where(eq(users.id, user.id));
+    await recordAudit(tx, { actorId: user.id, action: "user.sign_in", subjectType: "user", subjectId: user.id });
+  });
   return { id: user.id, role: user.role, customerId: user.customerId, name: user.name, email: user.email };
 }
 
