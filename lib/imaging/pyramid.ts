@@ -88,19 +88,36 @@ function reduce(img: RgbaImage, k: number): GreyLevel {
   const h = Math.max(1, Math.floor(img.height / k1));
   const out = new Float32Array(w * h);
   const src = img.data;
-  const norm = 1 / (k1 * k1);
+  const taps = blockTaps(k1);
+  const norm = 1 / (taps.length * taps.length);
   const rowSum = new Float32Array(w);
   for (let j = 0; j < h; j++) {
     rowSum.fill(0);
-    for (let dy = 0; dy < k1; dy++) {
-      let p = (j * k1 + dy) * img.width * 4;
+    for (const dy of taps) {
+      const row = (j * k1 + dy) * img.width * 4;
       for (let i = 0; i < w; i++) {
         let s = 0;
-        for (let dx = 0; dx < k1; dx++, p += 4) s += 0.299 * src[p] + 0.587 * src[p + 1] + 0.114 * src[p + 2];
+        for (const dx of taps) {
+          const p = row + (i * k1 + dx) * 4;
+          s += 0.299 * src[p] + 0.587 * src[p + 1] + 0.114 * src[p + 2];
+        }
         rowSum[i] += s;
       }
     }
     for (let i = 0; i < w; i++) out[j * w + i] = rowSum[i] * norm;
   }
   return { width: w, height: h, data: out, k: k1 };
+}
+
+/**
+ * Offsets read inside a block: all of them for small blocks; every other one for blocks of 8 and more (a level
+ * that small only needs the block's mean, and it quarters the reads of a 100-megapixel sheet), taken in
+ * mirrored pairs so their mean stays exactly at the block centre (k − 1)/2.
+ */
+function blockTaps(k: number): number[] {
+  if (k < 8) return Array.from({ length: k }, (_, i) => i);
+  const taps = new Set<number>();
+  for (let o = 0; o < k / 2; o += 2) taps.add(o).add(k - 1 - o);
+  if (k % 2 === 1) taps.add((k - 1) / 2);
+  return [...taps].sort((a, b) => a - b);
 }
