@@ -1,11 +1,22 @@
 // One rectangle of the sheet through normalise and compare: fetch artwork and aligned scan with a halo wide
 // enough for the low-pass and the registration radius, low-pass both, apply the colour model to the scan,
 // then compare the core. Full-width bands of this keep memory bounded on a B1 sheet at 300 dpi.
-import type { AlignedScanSource } from "./aligned-scan";
+import { warpScanToArtwork } from "./align";
 import { compareBand, CompareScratch, type BandDifference } from "./compare";
 import { applyColourModel, lowPass, type ColourModel } from "./normalise";
 import { cropRgba, intersect, type PxRect } from "./raster";
-import type { RgbaImage } from "./types";
+import type { Alignment, RgbaImage } from "./types";
+
+/** RGBA (alpha 255) of a rectangle of the scan seen in the artwork's pixel grid, and 1 where the scan covers it. */
+export type AlignedScanSource = (rect: PxRect) => { rgba: Uint8Array; mask: Uint8Array };
+
+/** The scan through its alignment, resampled one rectangle at a time: no full-size warped copy is held. */
+export function alignedScanSource(scan: RgbaImage, alignment: Alignment, artwork: RgbaImage): AlignedScanSource {
+  return (rect) => {
+    const { image, mask } = warpScanToArtwork(scan, alignment, artwork, rect);
+    return { rgba: image.data as Uint8Array, mask };
+  };
+}
 
 export interface SheetContext {
   artwork: RgbaImage;
@@ -28,7 +39,7 @@ export interface RectDifference extends BandDifference {
 
 /** Pixels the low-pass reaches beyond a core rectangle, plus the registration radius. */
 export function haloPx(ctx: SheetContext): number {
-  return Math.ceil(3 * ctx.sigmaPx) + ctx.radiusPx + 1;
+  return Math.ceil(3 * ctx.sigmaPx) + ctx.radiusPx + Math.ceil(2 * ctx.sigmaPx) + 1;
 }
 
 export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = false): Promise<RectDifference> {
@@ -59,7 +70,7 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
   for (let row = 0; row < core.h; row++) wideInspect.set(inspect.subarray(row * core.w, (row + 1) * core.w), row * ext.w + (core.x - ext.x));
   const diff = compareBand(
     { width: ext.w, rows: ext.h, art: artLow, scan: scanLow, coreY, coreRows: core.h, inspect: wideInspect },
-    { lowDeltaE00: ctx.lowDeltaE00, radiusPx: ctx.radiusPx, everyPixel },
+    { lowDeltaE00: ctx.lowDeltaE00, radiusPx: ctx.radiusPx, blurReachPx: Math.ceil(2 * ctx.sigmaPx), everyPixel },
     ctx.scratch,
   );
   ctx.timings.compare += performance.now() - mid;

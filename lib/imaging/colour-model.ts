@@ -8,16 +8,21 @@
 //    and fading to nothing away from the sheet's colours. The colours are grouped by ARTWORK colour and each
 //    group takes the median of its scan values, so a defect covering a minority of a colour (a shifted patch
 //    in a solid) cannot teach the model to hide it.
+import { linearToSrgb, srgbToLinear } from "./colour";
 import type { SamplePairs } from "./samples";
 
 export const LUT_SIZE = 33;
 const STEP = 255 / (LUT_SIZE - 1);
 const FEATURES = 10;
-/** Kernel width of the local corrections, 8-bit scan levels; and the weight left to "no local correction". */
-const KERNEL_SIGMA = 10;
-const KERNEL_FLOOR = 0.02;
+/** Kernel width of the local corrections (8-bit scan levels), the weight left to "no local correction", rounds. */
+const KERNEL_SIGMA = Number(process.env.KS ?? 10);
+const KERNEL_FLOOR = Number(process.env.KF ?? 0.02);
 const REFINE_ROUNDS = 3;
 const MIN_GROUP = 6;
+/** Largest spread of an artwork colour's channels (8-bit) that still counts as neutral. */
+const NEUTRAL_SPREAD = 12;
+const TONE_BIN = 8;
+const MIN_TONE_BIN = 20;
 
 export interface ColourModel {
   /** LUT_SIZE³ × 3 output values (0–255), red index slowest. */
@@ -84,8 +89,9 @@ export function fitColourModel(pairs: SamplePairs): ColourModel {
   for (let r = 0, o = 0; r < LUT_SIZE; r++)
     for (let g = 0; g < LUT_SIZE; g++)
       for (let b = 0; b < LUT_SIZE; b++, o += 3) lut.set(base(r * STEP, g * STEP, b * STEP), o);
-  // Local corrections: what the table still gets wrong at each artwork colour, spread around its scan colour;
-  // a few rounds, since neighbouring colours' kernels overlap.
+  // Local corrections: what the table still gets wrong at each artwork colour, spread around its scan colour
+  // by a Gaussian kernel and fading to nothing away from the sheet's colours; a few rounds, since neighbouring
+  // colours' kernels overlap.
   const reach = Math.ceil((3 * KERNEL_SIGMA) / STEP);
   for (let round = 0; round < REFINE_ROUNDS; round++) {
     const num = new Float64Array(LUT_SIZE ** 3 * 3);
@@ -168,16 +174,33 @@ function features(r: number, g: number, b: number): number[] {
 }
 
 /**
- * Tone curve of one channel (0–255 → 0–255) through the near-neutral colour groups (paper, greys, black):
- * each group's median scan value → its artwork value, made monotone (pool adjacent violators, weighted by
- * group size). Beyond their range it is anchored at the 0.2 and 99.8 percentiles of the whole covered area
- * (thin black text is never flat) and continued with slope 1. Medians keep stray marks out of the curve.
+ * Tone curve of one channel (0–255 → 0–255) from near-neutral artwork (paper, greys, black text): the median
+ * artwork value per scan code over window means of the whole covered area (text edges included, so the
+ * mid-tones are known), each near-neutral flat group's median, and the 0.2 and 99.8 percentiles of the
+ * covered area as anchors; the curve is then a smooth power law through them (powerCurve). Medians keep stray
+ * marks (a pen dot on white) out of the curve.
  */
 function fitToneCurve(groups: ColourGroup[], pairs: SamplePairs, c: number): Float32Array {
   const points: { x: number; y: number; w: number }[] = [];
   for (const g of groups) {
-    if (Math.max(...g.art) - Math.min(...g.art) > 12) continue;
-    points.push({ x: g.scan[c], y: g.art[c], w: g.count });
+    if (Math.max(...g.art) - Math.min(...g.art) > NEUTRAL_SPREAD) continue;
+    points.push({ x: g.scan[c], y: g.art[c], w: 4 * g.count });
+  }
+  // Bins of TONE_BIN scan codes: single codes hold too few edge samples and make the curve steep by chance.
+  const bins: { scan: number[]; art: number[] }[] = Array.from({ length: Math.ceil(256 / TONE_BIN) }, () => ({ scan: [], art: [] }));
+  const a = pairs.allArt;
+  for (let i = 0; i < pairs.allCount; i++) {
+    const r = a[i * 3], g = a[i * 3 + 1], b = a[i * 3 + 2];
+    if (Math.max(r, g, b) - Math.min(r, g, b) > NEUTRAL_SPREAD) continue;
+    const sv = pairs.allScan[i * 3 + c];
+    const bin = bins[Math.min(bins.length - 1, Math.max(0, Math.floor(sv / TONE_BIN)))];
+    bin.scan.push(sv);
+    bin.art.push(a[i * 3 + c]);
+  }
+  const median = (v: number[]) => v.sort((x, y) => x - y)[v.length >> 1];
+  for (const bin of bins) {
+    if (bin.art.length < MIN_TONE_BIN) continue;
+    points.push({ x: median(bin.scan), y: median(bin.art), w: bin.art.length });
   }
   const total = points.reduce((t, p) => t + p.w, 0);
   const flatLo = Math.min(256, ...points.map((p) => p.x)), flatHi = Math.max(-1, ...points.map((p) => p.x));
@@ -186,29 +209,36 @@ function fitToneCurve(groups: ColourGroup[], pairs: SamplePairs, c: number): Flo
   const anchorWeight = Math.max(1, total * 0.002);
   if (scanLo < flatLo - 8) points.push({ x: scanLo, y: artLo, w: anchorWeight });
   if (scanHi > flatHi + 8) points.push({ x: scanHi, y: artHi, w: anchorWeight });
-  points.sort((p, q) => p.x - q.x);
-  const xs: number[] = [], ys: number[] = [], ws: number[] = [];
-  for (const p of points) {
-    xs.push(p.x); ys.push(p.y); ws.push(p.w);
-    while (ys.length > 1 && ys[ys.length - 2] > ys[ys.length - 1]) {
-      const w = ws[ws.length - 2] + ws[ws.length - 1];
-      const y = (ys[ys.length - 2] * ws[ws.length - 2] + ys[ys.length - 1] * ws[ws.length - 1]) / w;
-      const x = (xs[xs.length - 2] * ws[ws.length - 2] + xs[xs.length - 1] * ws[ws.length - 1]) / w;
-      xs.splice(-2, 2, x); ys.splice(-2, 2, y); ws.splice(-2, 2, w);
+  return powerCurve(points);
+}
+
+/**
+ * The smooth tone curve through the points, in linear light: artwork = a + b · scan^γ (least squares, γ by a
+ * search over 0.5–2). Three parameters follow a press's density change, paper white and a scanner's gamma,
+ * and cannot turn steep by chance where edge samples are sparse, as a free-form curve would.
+ */
+function powerCurve(points: { x: number; y: number; w: number }[]): Float32Array {
+  const xs = points.map((p) => srgbToLinear(Math.min(255, Math.max(0, p.x)) / 255));
+  const ys = points.map((p) => srgbToLinear(Math.min(255, Math.max(0, p.y)) / 255));
+  let best = { err: Infinity, a: 0, b: 1, gamma: 1 };
+  for (let gamma = 0.5; gamma <= 2.0001; gamma += 0.01) {
+    let sw = 0, sx = 0, sy = 0, sxx = 0, sxy = 0;
+    for (let i = 0; i < points.length; i++) {
+      const w = points[i].w, x = xs[i] ** gamma, y = ys[i];
+      sw += w; sx += w * x; sy += w * y; sxx += w * x * x; sxy += w * x * y;
     }
+    const det = sw * sxx - sx * sx;
+    if (!(Math.abs(det) > 1e-12)) continue;
+    const b = (sw * sxy - sx * sy) / det, a = (sy - b * sx) / sw;
+    if (!(b > 0)) continue;
+    let err = 0;
+    for (let i = 0; i < points.length; i++) err += points[i].w * (a + b * xs[i] ** gamma - ys[i]) ** 2;
+    if (err < best.err) best = { err, a, b, gamma };
   }
   const curve = new Float32Array(256);
-  for (let s = 0; s < 256; s++) {
-    let v = s;
-    if (xs.length === 0) v = s;
-    else if (s <= xs[0]) v = ys[0] - (xs[0] - s);
-    else if (s >= xs[xs.length - 1]) v = ys[ys.length - 1] + (s - xs[xs.length - 1]);
-    else {
-      let j = 1;
-      while (xs[j] < s) j++;
-      v = ys[j - 1] + ((ys[j] - ys[j - 1]) * (s - xs[j - 1])) / Math.max(1e-6, xs[j] - xs[j - 1]);
-    }
-    curve[s] = Math.min(255, Math.max(0, v));
+  for (let v = 0; v < 256; v++) {
+    const lin = best.a + best.b * srgbToLinear(v / 255) ** best.gamma;
+    curve[v] = 255 * linearToSrgb(Math.min(1, Math.max(0, lin)));
   }
   return curve;
 }

@@ -18,11 +18,12 @@ export const PIXEL_COLOUR_SHIFT = 3;
 
 const DE00_OVER_DEAB = 1.4;
 /**
- * ΔE00 forgiven per unit of the artwork's local contrast (ΔE*ab extent within the registration radius). Along
+ * ΔE00 forgiven per unit of the artwork's local contrast (ΔE*ab extent within the registration radius plus
+ * the low-pass's reach). Along
  * edges, scanner optics, JPEG chroma subsampling and the colour model's error on blended colours leave
  * 5–15 % of the edge contrast; a missing or extra stroke differs by about the whole contrast.
  */
-const EDGE_ALLOWANCE = 0.15;
+const EDGE_ALLOWANCE = Number(process.env.EA ?? 0.15);
 /** Smallest YIQ distance per ΔE00² seen on 1 % of random sRGB pairs (measured; the worst case was 0.077). */
 const YIQ_PER_DE00_SQUARED = 0.2;
 const YIQ_MAX = 35215;
@@ -32,6 +33,8 @@ export interface CompareSettings {
   lowDeltaE00: number;
   /** Registration tolerance in whole pixels (square neighbourhood). */
   radiusPx: number;
+  /** How far beyond the registration radius the edge allowance looks (about 2σ of the low-pass), px. */
+  blurReachPx: number;
   /** Compute the tolerant ΔE00 of every pixel (difference crops) instead of screening. */
   everyPixel?: boolean;
 }
@@ -109,6 +112,9 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
   rgbaToLab(band.scan, ls);
 
   const r = settings.radiusPx;
+  // The edge allowance looks as far as an edge's blur reaches: a thin rule is lighter along its whole middle
+  // when the scan is softer, although its middle has no contrast within the registration radius.
+  const reach = r + settings.blurReachPx;
   const bound = (low / DE00_OVER_DEAB) ** 2;
   const inspect = band.inspect;
   let flagged = 0;
@@ -142,8 +148,10 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       if (e < low && !settings.everyPixel) continue;
       // Edge allowance: the artwork's own contrast around the pixel (extent of its Lab values).
       let lMin = al, lMax = al, aMin = aa, aMax = aa, bMin = ab, bMax = ab;
-      for (let yy = y0; yy <= y1; yy++) {
-        for (let xx = x0, q = (yy * width + x0) * 3; xx <= x1; xx++, q += 3) {
+      const cy0 = Math.max(0, y - reach), cy1 = Math.min(rows - 1, y + reach);
+      const cx0 = Math.max(0, x - reach), cx1 = Math.min(width - 1, x + reach);
+      for (let yy = cy0; yy <= cy1; yy++) {
+        for (let xx = cx0, q = (yy * width + cx0) * 3; xx <= cx1; xx++, q += 3) {
           const l = la[q], a = la[q + 1], b = la[q + 2];
           if (l < lMin) lMin = l; else if (l > lMax) lMax = l;
           if (a < aMin) aMin = a; else if (a > aMax) aMax = a;

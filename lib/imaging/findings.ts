@@ -15,8 +15,10 @@ export interface Region {
   count: number;
   sumDeltaE: number;
   maxDeltaE: number;
-  /** Highest score (ΔE00 less the edge allowance): the second flagging level tests this. */
+  /** Highest score (ΔE00 less the edge allowance). */
   maxScore: number;
+  /** Pixels whose score reaches the second level (the profile's ΔE00). */
+  strongCount: number;
   /** ΔE-weighted votes for extra ink, missing ink, colour shift. */
   votes: [number, number, number];
 }
@@ -29,13 +31,18 @@ export class RegionCollector {
   private runSum: number[] = [];
   private runMax: number[] = [];
   private runScore: number[] = [];
+  private runStrong: number[] = [];
   private runVotes: number[] = [];
   private parent: number[] = [];
   private prevStart = 0;
   private prevEnd = 0;
   private lastRow = -2;
 
-  constructor(private readonly width: number) {}
+  /** `peakLevel`: the second level of the two-level flagging, counted per region. */
+  constructor(
+    private readonly width: number,
+    private readonly peakLevel = Infinity,
+  ) {}
 
   get runCount(): number {
     return this.runY.length;
@@ -53,10 +60,12 @@ export class RegionCollector {
       while (x < bandWidth) {
         if (deltaE[base + x] === 0) { x++; continue; }
         const start = x;
-        let sum = 0, max = 0, top = 0, v1 = 0, v2 = 0, v3 = 0;
+        let sum = 0, max = 0, top = 0, strong = 0, v1 = 0, v2 = 0, v3 = 0;
         while (x < bandWidth && deltaE[base + x] !== 0) {
           const e = deltaE[base + x];
-          if (score[base + x] > top) top = score[base + x];
+          const sc = score[base + x];
+          if (sc > top) top = sc;
+          if (sc >= this.peakLevel) strong++;
           sum += e;
           if (e > max) max = e;
           const k = kind[base + x];
@@ -67,7 +76,7 @@ export class RegionCollector {
         }
         const id = this.runY.length;
         this.runX0.push(pageX + start); this.runX1.push(pageX + x); this.runY.push(y);
-        this.runSum.push(sum); this.runMax.push(max); this.runScore.push(top); this.runVotes.push(v1, v2, v3);
+        this.runSum.push(sum); this.runMax.push(max); this.runScore.push(top); this.runStrong.push(strong); this.runVotes.push(v1, v2, v3);
         this.parent.push(id);
       }
       this.joinRows(this.prevStart, this.prevEnd, rowStart, this.runY.length);
@@ -105,7 +114,7 @@ export class RegionCollector {
       const root = this.find(i);
       let r = byRoot.get(root);
       if (!r) {
-        r = { x0: Infinity, y0: Infinity, x1: -Infinity, y1: -Infinity, count: 0, sumDeltaE: 0, maxDeltaE: 0, maxScore: 0, votes: [0, 0, 0] };
+        r = { x0: Infinity, y0: Infinity, x1: -Infinity, y1: -Infinity, count: 0, sumDeltaE: 0, maxDeltaE: 0, maxScore: 0, strongCount: 0, votes: [0, 0, 0] };
         byRoot.set(root, r);
       }
       r.x0 = Math.min(r.x0, this.runX0[i]); r.x1 = Math.max(r.x1, this.runX1[i]);
@@ -114,6 +123,7 @@ export class RegionCollector {
       r.sumDeltaE += this.runSum[i];
       r.maxDeltaE = Math.max(r.maxDeltaE, this.runMax[i]);
       r.maxScore = Math.max(r.maxScore, this.runScore[i]);
+      r.strongCount += this.runStrong[i];
       for (let k = 0; k < 3; k++) r.votes[k] += this.runVotes[i * 3 + k];
     }
     return [...byRoot.values()];
@@ -122,8 +132,8 @@ export class RegionCollector {
 
 export interface FindingRules {
   dpi: number;
-  /** Second level: a region's peak ΔE00 must reach this. */
-  peakDeltaE00: number;
+  /** Second level: this many of a region's pixels must reach the profile's ΔE00 (a single pixel is noise). */
+  minStrongPx: number;
   /** Smallest area kept, mm². */
   minAreaMm2: number;
   /** Regions whose boxes lie within this distance are one finding, mm. */
@@ -134,7 +144,7 @@ export interface FindingRules {
 
 /** Regions → findings (without crops), largest first. */
 export function regionsToFindings(regions: Region[], rules: FindingRules): { findings: Finding[]; kept: Region[] } {
-  const strong = regions.filter((r) => r.maxScore >= rules.peakDeltaE00);
+  const strong = regions.filter((r) => r.strongCount >= rules.minStrongPx);
   const merged = mergeNearby(strong, (rules.mergeMm * rules.dpi) / 25.4);
   const pxArea = (25.4 / rules.dpi) ** 2;
   const kept = merged.filter((r) => r.count * pxArea >= rules.minAreaMm2).sort((a, b) => b.count - a.count);
@@ -178,7 +188,7 @@ function mergeNearby(regions: Region[], gapPx: number): Region[] {
         if (a.x0 - gapPx > b.x1 || b.x0 - gapPx > a.x1 || a.y0 - gapPx > b.y1 || b.y0 - gapPx > a.y1) continue;
         a.x0 = Math.min(a.x0, b.x0); a.y0 = Math.min(a.y0, b.y0);
         a.x1 = Math.max(a.x1, b.x1); a.y1 = Math.max(a.y1, b.y1);
-        a.count += b.count; a.sumDeltaE += b.sumDeltaE; a.maxDeltaE = Math.max(a.maxDeltaE, b.maxDeltaE); a.maxScore = Math.max(a.maxScore, b.maxScore);
+        a.count += b.count; a.sumDeltaE += b.sumDeltaE; a.maxDeltaE = Math.max(a.maxDeltaE, b.maxDeltaE); a.maxScore = Math.max(a.maxScore, b.maxScore); a.strongCount += b.strongCount;
         for (let k = 0; k < 3; k++) a.votes[k] += b.votes[k];
         out.splice(j, 1);
         j--;

@@ -1,7 +1,7 @@
 // The inspection of one press sheet: align → normalise → compare → findings. The CLI and the worker call
 // exactly this. Pure: typed arrays in, plain objects out; safe inside a worker thread (no shared state).
-import { affineScanSource } from "./aligned-scan";
-import { haloPx, processRect, type SheetContext } from "./bands";
+import { alignScan } from "./align";
+import { alignedScanSource, haloPx, processRect, type SheetContext } from "./bands";
 import { CompareScratch } from "./compare";
 import { makeCrops } from "./crops";
 import { RegionCollector, regionsToFindings } from "./findings";
@@ -48,7 +48,8 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
 
   progress("align", 0);
   let started = performance.now();
-  const alignment = input.alignment ?? (await alignSheet(artwork, scan));
+  // A scan_mismatch (wrong artwork, blank scan) propagates from here as an ImagingError.
+  const alignment = input.alignment ?? (await alignScan(artwork, scan)).alignment;
   timings.align = performance.now() - started;
   progress("normalise", 15);
 
@@ -60,12 +61,11 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
   started = performance.now();
   const fit = fitNormalisation(artwork, scan, alignment.artworkToScan, inspectPx, Math.ceil(2.5 * sigmaPx) + radiusPx);
   timings.normalise += performance.now() - started;
-  if (process.env.TYMPAN_DEBUG) console.log("fit", fit.driftDeltaE00, fit.residualDeltaE00, fit.flatSamples);
 
   const stageTimes = { normalise: 0, compare: 0 };
   const ctx: SheetContext = {
     artwork,
-    source: affineScanSource(scan, alignment.artworkToScan),
+    source: alignedScanSource(scan, alignment, artwork),
     model: fit.model,
     sigmaPx,
     radiusPx,
@@ -75,7 +75,7 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
     scratch: new CompareScratch(),
     timings: stageTimes,
   };
-  const collector = new RegionCollector(artwork.width);
+  const collector = new RegionCollector(artwork.width, peak);
   const bandRows = Math.max(64, Math.floor(BAND_PIXELS / artwork.width), haloPx(ctx) * 4);
   const yEnd = inspectPx.y + inspectPx.h;
   for (let y = inspectPx.y; y < yEnd; y += bandRows) {
@@ -91,10 +91,11 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
 
   progress("findings", 90);
   started = performance.now();
+  const minAreaMm2 = (Math.PI / 4) * profile.minDefectMm ** 2;
   const { findings } = regionsToFindings(collector.regions(), {
     dpi,
-    peakDeltaE00: peak,
-    minAreaMm2: 0.5 * (Math.PI / 4) * profile.minDefectMm ** 2,
+    minStrongPx: Math.max(3, Math.round(minAreaMm2 / (25.4 / dpi) ** 2)),
+    minAreaMm2,
     mergeMm: Math.max(0.6, 2 * profile.minDefectMm),
     ups,
     pageMm: { widthMm: artwork.widthMm, heightMm: artwork.heightMm },
@@ -112,12 +113,6 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
     findings,
     timingsMs: timings,
   };
-}
-
-async function alignSheet(artwork: ArtworkRaster, scan: ScanImage): Promise<Alignment> {
-  void artwork;
-  void scan;
-  throw new ImagingError("align_unavailable", "Scan alignment is not available; pass a known alignment.");
 }
 
 /** The alignment of a scan already in the artwork's pixel grid (same size and resolution). */

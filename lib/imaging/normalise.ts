@@ -40,10 +40,10 @@ export async function lowPass(rgba: Uint8Array, width: number, height: number, s
     .toBuffer();
   const blurred = new Uint16Array(out.buffer, out.byteOffset, out.length / 2);
   const result = new Uint8Array(n * 4);
-  for (let i = 0, p = 0; i < n; i++, p += 4) {
-    result[p] = FROM_LINEAR16[blurred[i * 3]];
-    result[p + 1] = FROM_LINEAR16[blurred[i * 3 + 1]];
-    result[p + 2] = FROM_LINEAR16[blurred[i * 3 + 2]];
+  for (let i = 0, p = 0, q = 0; i < n; i++, p += 4, q += 3) {
+    result[p] = FROM_LINEAR16[blurred[q]];
+    result[p + 1] = FROM_LINEAR16[blurred[q + 1]];
+    result[p + 2] = FROM_LINEAR16[blurred[q + 2]];
     result[p + 3] = 255;
   }
   return result;

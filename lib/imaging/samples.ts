@@ -2,6 +2,7 @@
 // that no full-size warped copy of the scan is needed. "Flat" pairs lie where the artwork is uniform over the
 // whole radius of the low-pass and registration tolerance, so misregistration cannot bias them; "all" pairs
 // (window means of both) feed the percentile anchors of the tone curves.
+import { linearToSrgb, SRGB8_TO_LINEAR } from "./colour";
 import type { AffineMap, PxRect } from "./raster";
 import type { RgbaImage } from "./types";
 
@@ -40,15 +41,17 @@ export function sampleFlatPairs(
   const scale = Math.sqrt(Math.abs(m[0] * m[4] - m[1] * m[3]));
   const kArt = Math.max(1, Math.round(radiusPx / 3));
   const kScan = Math.max(1, Math.round(kArt * scale));
+  // Window means in linear light (then encoded again), so a blurred edge averages like the sharp one.
+  const lin = SRGB8_TO_LINEAR;
   const mean = (data: Uint8Array | Uint8ClampedArray, width: number, cx: number, cy: number, k: number, out: Float32Array, o: number) => {
     let s0 = 0, s1 = 0, s2 = 0;
     for (let yy = cy - k; yy <= cy + k; yy++) {
       for (let xx = cx - k, p = (yy * width + xx) * 4; xx <= cx + k; xx++, p += 4) {
-        s0 += data[p]; s1 += data[p + 1]; s2 += data[p + 2];
+        s0 += lin[data[p]]; s1 += lin[data[p + 1]]; s2 += lin[data[p + 2]];
       }
     }
     const n = (2 * k + 1) * (2 * k + 1);
-    out[o] = s0 / n; out[o + 1] = s1 / n; out[o + 2] = s2 / n;
+    out[o] = 255 * linearToSrgb(s0 / n); out[o + 1] = 255 * linearToSrgb(s1 / n); out[o + 2] = 255 * linearToSrgb(s2 / n);
   };
   for (let y = y0; y < y1; y += stride) {
     for (let x = x0; x < x1; x += stride) {

@@ -2,13 +2,15 @@
 // scanned: dots of dark ink (a felt-tip mark of 0.3–2 mm on one sheet of a long run must be found — common
 // practice, no published source), voids (hickeys: paper showing through a solid), scratches (a thin light line
 // across a solid) and a colour-shifted patch. The changed word comes from rendering a second artwork PDF.
+import { D65_WHITE, linearToSrgb, srgb8ToLab } from "@/lib/imaging/colour";
 import type { FindingKind, RectMm, RgbaImage } from "@/lib/imaging/types";
 
 export type DefectSpec =
   | { type: "dot"; xMm: number; yMm: number; diameterMm: number; rgb?: [number, number, number] }
   | { type: "void"; xMm: number; yMm: number; diameterMm: number }
   | { type: "scratch"; x0Mm: number; y0Mm: number; x1Mm: number; y1Mm: number; widthMm: number }
-  | { type: "colour_shift"; rectMm: RectMm; inkGain: [number, number, number] };
+  /** A patch whose colour turns by `hueDeg` in CIELAB at the same lightness and chroma (e.g. one ink's share). */
+  | { type: "colour_shift"; rectMm: RectMm; hueDeg: number };
 
 export interface DefectTruth {
   type: DefectSpec["type"] | "changed_word";
@@ -46,16 +48,55 @@ export function applyDefects(img: RgbaImage & { dpi: number }, defects: DefectSp
     } else {
       const r = d.rectMm, soft = px(0.3);
       const x0 = px(r.x), y0 = px(r.y), x1 = px(r.x + r.w), y1 = px(r.y + r.h);
-      paint(img, x0, y0, x1, y1, (x, y) => Math.min(x + 0.5 - x0, x1 - x - 0.5, y + 0.5 - y0, y1 - y - 0.5) / soft + 0.5, (v, c, cov) =>
-        255 - (255 - v) * (1 + (d.inkGain[c] - 1) * cov),
-      );
+      const turned = new Map<number, [number, number, number]>();
+      const turn = (p: number): [number, number, number] => {
+        const key = (img.data[p] << 16) | (img.data[p + 1] << 8) | img.data[p + 2];
+        let t = turned.get(key);
+        if (!t) turned.set(key, (t = turnHue(img.data[p], img.data[p + 1], img.data[p + 2], d.hueDeg)));
+        return t;
+      };
+      paintPixels(img, x0, y0, x1, y1, (x, y) => Math.min(x + 0.5 - x0, x1 - x - 0.5, y + 0.5 - y0, y1 - y - 0.5) / soft + 0.5, (p, cov) => {
+        const t = turn(p);
+        for (let c = 0; c < 3; c++) img.data[p + c] = Math.round(img.data[p + c] + (t[c] - img.data[p + c]) * cov);
+      });
       truths.push({ type: "colour_shift", boxMm: { ...r }, kind: "colour_shift" });
     }
   }
   return truths;
 }
 
+/** sRGB 8-bit turned by `deg` of CIELAB hue (D65), lightness and chroma kept; clipped to the sRGB gamut. */
+function turnHue(r: number, g: number, b: number, deg: number): [number, number, number] {
+  const [l, a, bb] = srgb8ToLab(r, g, b);
+  const t = (deg * Math.PI) / 180;
+  const a2 = a * Math.cos(t) - bb * Math.sin(t), b2 = a * Math.sin(t) + bb * Math.cos(t);
+  // Inverse of CIE 15:2004 Lab, then XYZ → linear sRGB (inverse of the sRGB matrix), then the transfer curve.
+  const fy = (l + 16) / 116, fx = fy + a2 / 500, fz = fy - b2 / 200;
+  const inv = (f: number) => (f > 6 / 29 ? f ** 3 : 3 * (6 / 29) ** 2 * (f - 4 / 29));
+  const [x, y, z] = [inv(fx) * D65_WHITE[0], inv(fy) * D65_WHITE[1], inv(fz) * D65_WHITE[2]];
+  const rl = 3.2404542 * x - 1.5371385 * y - 0.4985314 * z;
+  const gl = -0.969266 * x + 1.8760108 * y + 0.041556 * z;
+  const bl = 0.0556434 * x - 0.2040259 * y + 1.0572252 * z;
+  return [rl, gl, bl].map((v) => Math.round(255 * linearToSrgb(Math.min(1, Math.max(0, v))))) as [number, number, number];
+}
+
 /** Calls `blend` for every channel of every pixel in the box whose coverage (clamped 0–1) is above zero. */
+function paintPixels(
+  img: RgbaImage,
+  bx0: number, by0: number, bx1: number, by1: number,
+  coverage: (x: number, y: number) => number,
+  apply: (p: number, cov: number) => void,
+): void {
+  const xa = Math.max(0, Math.floor(bx0)), ya = Math.max(0, Math.floor(by0));
+  const xb = Math.min(img.width - 1, Math.ceil(bx1)), yb = Math.min(img.height - 1, Math.ceil(by1));
+  for (let y = ya; y <= yb; y++) {
+    for (let x = xa; x <= xb; x++) {
+      const cov = Math.min(1, Math.max(0, coverage(x, y)));
+      if (cov > 0) apply((y * img.width + x) * 4, cov);
+    }
+  }
+}
+
 function paint(
   img: RgbaImage,
   bx0: number, by0: number, bx1: number, by1: number,
