@@ -77,9 +77,9 @@ describe("alignScan on simulated scans of a 6-up carton sheet", () => {
   it("reports the scan's position of the page corner and the residual in px and mm", async () => {
     const o: GlassOptions = { rotationDeg: 0, dpi: 150, sizeMm: { w: 320, h: 240 }, centreMm: { x: 160.5, y: 117 } };
     const { alignment: a } = await alignCase(carton, o);
-    // Page corner = centre − half the sheet: (160.5 − 148.5, 117 − 105) mm.
-    expect(a.txMm).toBeCloseTo(12, 1);
-    expect(a.tyMm).toBeCloseTo(12, 1);
+    // Page corner = centre − half the page (the raster's size: whole pixels, so 296.93 × 210.06 mm).
+    expect(Math.abs(a.txMm - (160.5 - (carton.width * 12.7) / DPI))).toBeLessThan(0.03);
+    expect(Math.abs(a.tyMm - (117 - (carton.height * 12.7) / DPI))).toBeLessThan(0.03);
     expect(a.residualMm).toBeCloseTo((a.residualPx * 25.4) / DPI, 3);
   });
 });
