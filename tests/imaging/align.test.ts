@@ -5,6 +5,7 @@
 import { beforeAll, describe, expect, it } from "vitest";
 import { alignScan, warpScanToArtwork } from "@/lib/imaging/align";
 import { apply, coveredRect, pxRectToMm } from "@/lib/imaging/align-affine";
+import { loadOpenCv } from "@/lib/imaging/opencv";
 import { rasterisePage } from "@/lib/imaging/rasterise";
 import { ImagingError, type Alignment, type ArtworkRaster, type RectMm, type ScanImage } from "@/lib/imaging/types";
 import { makeCartonPdf } from "@/tests/support/carton";
@@ -52,6 +53,40 @@ function expectAccurate(a: Alignment, sim: GlassScan, art: ArtworkRaster, o: Gla
   expect(a.residualMm).toBeLessThan(0.1);
   return err;
 }
+
+describe("the simulated scanner glass (the truth the other tests measure against)", () => {
+  it("turns the sheet as OpenCV's getRotationMatrix2D does, and draws a dot where its map says", async () => {
+    const cv = await loadOpenCv();
+    const size = { w: (carton.width * 25.4) / DPI, h: (carton.height * 25.4) / DPI };
+    const sim = placeOnGlass(carton, { rotationDeg: 2.5, scale: 1.02, sizeMm: size });
+    // OpenCV's angle is counter-clockwise on screen; the glass turns clockwise for a positive angle.
+    const ref = cv.getRotationMatrix2D(new cv.Point((carton.width - 1) / 2, (carton.height - 1) / 2), -2.5, 1.02);
+    const m = Array.from(ref.data64F as Float64Array);
+    ref.delete();
+    sim.artworkToScan.forEach((v, i) => expect(v).toBeCloseTo(m[i], 9));
+
+    // A black dot on white paper, turned a quarter and scanned at 150 dpi: its centroid.
+    const page: ArtworkRaster = { ...carton, data: new Uint8ClampedArray(carton.data.length).fill(255) };
+    const cx = 700.3, cy = 420.6;
+    for (let y = 0; y < page.height; y++) for (let x = 0; x < page.width; x++) {
+      if ((x - cx) ** 2 + (y - cy) ** 2 <= 36) page.data.fill(0, (y * page.width + x) * 4, (y * page.width + x) * 4 + 3);
+    }
+    let ax = 0, ay = 0, aw = 0;
+    for (let y = 0; y < page.height; y++) for (let x = 0; x < page.width; x++) {
+      const ink = 255 - page.data[(y * page.width + x) * 4];
+      if (ink > 0) [ax, ay, aw] = [ax + ink * x, ay + ink * y, aw + ink];
+    }
+    const dot = placeOnGlass(page, { rotationDeg: 93, dpi: 150 });
+    const [ex, ey] = apply(dot.artworkToScan, ax / aw, ay / aw);
+    // Centroid of the ink in a window around the expected spot (all paper there, no lid).
+    let sx = 0, sy = 0, sw = 0;
+    for (let y = Math.round(ey) - 20; y <= Math.round(ey) + 20; y++) for (let x = Math.round(ex) - 20; x <= Math.round(ex) + 20; x++) {
+      const ink = 255 - dot.scan.data[(y * dot.scan.width + x) * 4];
+      [sx, sy, sw] = [sx + ink * x, sy + ink * y, sw + ink];
+    }
+    expect(Math.hypot(sx / sw - ex, sy / sw - ey)).toBeLessThan(0.1);
+  });
+});
 
 describe("alignScan on simulated scans of a 6-up carton sheet", () => {
   const cases: [string, GlassOptions][] = [
@@ -162,6 +197,18 @@ describe("alignScan with local refinement for paper stretch", () => {
     };
     expect(err(plain)).toBeGreaterThan(0.15);
     expect(err(local)).toBeLessThan(0.1);
+    // The warp applies the field: the warped scan then sits closer on the artwork than through the affine alone.
+    const misfit = (a: Alignment) => {
+      const { image, mask } = warpScanToArtwork(sim.scan, a, carton);
+      let sum = 0, n = 0;
+      for (let i = 0; i < mask.length; i++) {
+        if (!mask[i]) continue;
+        sum += Math.abs(image.data[i * 4 + 1] - carton.data[i * 4 + 1]);
+        n++;
+      }
+      return sum / n;
+    };
+    expect(misfit(local)).toBeLessThan(0.9 * misfit(plain));
   });
 });
 
