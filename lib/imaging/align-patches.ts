@@ -2,8 +2,9 @@
 //
 // Why patches: after ECC on small levels the map is right to a few tenths of a millimetre; the last tenth needs
 // full detail, but only in a few places. Windows of 64 px are spread over the covered area (in each grid cell
-// the position with the strongest two-way structure — Shi & Tomasi 1994's smaller structure-tensor eigenvalue —
-// so that a window on a single rule cannot slide along it), each located in the scan resampled through the
+// the position with the strongest two-way structure — the smaller structure-tensor eigenvalue of J. Shi &
+// C. Tomasi, "Good features to track", CVPR 1994, cited from memory — so that a window on a single rule
+// cannot slide along it), each located in the scan resampled through the
 // current map by matchTemplate within a small search radius and a parabolic sub-pixel peak, and an affine map
 // is fitted through all of them, dropping outliers (a defect or the sheet number under a window). Two passes:
 // the second starts from the first fit, so the offsets are near zero, where the parabola's bias vanishes.

@@ -1,9 +1,10 @@
 // ALIGN: register a scan of a press sheet to its artwork raster, coarse to fine.
 //
 //  1. coarse placement (align-coarse.ts): whole-page correlation on ~4 000-pixel grey levels over the four
-//     quarter turns × ±6° (recovers up to ±7°) — robust to repeated ups, where feature matching locks an up off;
-//  2. affine ECC (OpenCV findTransformECC, Evangelidis & Psarakis 2008) on that level and on one twice as
-//     fine. ECC is exact sub-pixel and its correlation refuses a plainly wrong artwork, but costs ~80 ns per
+//     quarter turns × ±6° (recovers ±7°) — robust to repeated ups, where feature matching locks an up off;
+//  2. affine ECC (OpenCV findTransformECC; G. D. Evangelidis & E. Z. Psarakis, "Parametric image alignment
+//     using enhanced correlation coefficient maximization", IEEE TPAMI 30(10), 2008 — cited from memory) on
+//     that level and on one twice as fine. ECC is exact sub-pixel and its correlation refuses a plainly wrong artwork, but costs ~80 ns per
 //     pixel and iteration in the WebAssembly build (1.3 s on 1000 × 1000), so it only runs on ~4 000- and
 //     ~16 000-pixel levels, cut to the part of the page the scan covers;
 //  3. patches at the comparison resolution (align-patches.ts): small windows spread over the covered area,

@@ -9,7 +9,10 @@ import type { RgbaImage } from "./types";
 export interface GreyLevel {
   width: number;
   height: number;
-  /** Luma 0–255 (ITU-R BT.601 weights on the sRGB values, as OpenCV's RGB→grey conversion). */
+  /**
+   * Luma 0–255: ITU-R BT.601 weights 0.299 / 0.587 / 0.114 on the sRGB values, as OpenCV's RGB→grey
+   * conversion (weights cited from memory).
+   */
   data: Float32Array;
   /** Block size in full-resolution pixels. */
   k: number;

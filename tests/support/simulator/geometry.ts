@@ -2,7 +2,9 @@
 // scaled, shifted, at the scanner's own resolution, with lid background around the sheet or with the glass
 // seeing only part of the sheet. Returns the scan and the TRUE artwork px → scan px affine, so tests measure
 // the registration error. Each scan pixel integrates its footprint (n × n sub-samples when the scan is
-// coarser than the artwork, like a sensor cell), each sub-sample bilinear or bicubic (Keys 1981, a = −0.5).
+// coarser than the artwork, like a sensor cell), each sub-sample bilinear or bicubic (R. G. Keys, "Cubic
+// convolution interpolation for digital image processing", IEEE Trans. ASSP 29(6), 1981, a = −0.5; cited
+// from memory).
 // Pixel centres sit at integer coordinates; the page spans −0.5 … width − 0.5.
 import type { Affine } from "@/lib/imaging/align-affine";
 import type { ArtworkRaster, ScanImage } from "@/lib/imaging/types";
