@@ -23,7 +23,13 @@ const DE00_OVER_DEAB = 1.4;
  * edges, scanner optics, JPEG chroma subsampling and the colour model's error on blended colours leave
  * 5–15 % of the edge contrast; a missing or extra stroke differs by about the whole contrast.
  */
-const EDGE_ALLOWANCE = Number(process.env.EA ?? 0.15);
+const EDGE_ALLOWANCE = 0.15;
+/**
+ * The same for a sideways move in colour (hue or chroma at the same ink): along edges that is what JPEG's
+ * subsampled chroma and a scanner's colour fringes produce, while a true colour shift sits in a flat area,
+ * where the allowance is nil.
+ */
+const EDGE_ALLOWANCE_COLOUR = 0.35;
 /** Smallest YIQ distance per ΔE00² seen on 1 % of random sRGB pairs (measured; the worst case was 0.077). */
 const YIQ_PER_DE00_SQUARED = 0.2;
 const YIQ_MAX = 35215;
@@ -159,13 +165,14 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
         }
       }
       const contrast = Math.sqrt((lMax - lMin) ** 2 + (aMax - aMin) ** 2 + (bMax - bMin) ** 2);
-      const s = e - EDGE_ALLOWANCE * contrast;
+      const k = classify(al, aa, ab, sl, sa, sb);
+      const s = e - (k === PIXEL_COLOUR_SHIFT ? EDGE_ALLOWANCE_COLOUR : EDGE_ALLOWANCE) * contrast;
       if (s < low && !settings.everyPixel) continue;
       deltaE[i] = e;
       score[i] = s > 0 ? s : 0;
       if (s >= low) {
         flagged++;
-        kind[i] = classify(al, aa, ab, sl, sa, sb);
+        kind[i] = k;
       }
     }
   }

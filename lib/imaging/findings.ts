@@ -130,6 +130,13 @@ export class RegionCollector {
   }
 }
 
+/**
+ * Smallest colour shift reported, mm². Colour is judged over areas (a spectrophotometer's aperture is a few mm
+ * across — from memory, 3–4 mm is usual); a sub-millimetre speck of hue alone is scan noise or JPEG chroma
+ * blocking, while a speck of ink (extra or missing) keeps the profile's smaller minimum.
+ */
+const MIN_COLOUR_SHIFT_MM2 = 1;
+
 export interface FindingRules {
   dpi: number;
   /** Second level: this many of a region's pixels must reach the profile's ΔE00 (a single pixel is noise). */
@@ -147,7 +154,9 @@ export function regionsToFindings(regions: Region[], rules: FindingRules): { fin
   const strong = regions.filter((r) => r.strongCount >= rules.minStrongPx);
   const merged = mergeNearby(strong, (rules.mergeMm * rules.dpi) / 25.4);
   const pxArea = (25.4 / rules.dpi) ** 2;
-  const kept = merged.filter((r) => r.count * pxArea >= rules.minAreaMm2).sort((a, b) => b.count - a.count);
+  const kept = merged
+    .filter((r) => r.count * pxArea >= (kindOf(r.votes) === "colour_shift" ? Math.max(rules.minAreaMm2, MIN_COLOUR_SHIFT_MM2) : rules.minAreaMm2))
+    .sort((a, b) => b.count - a.count);
   const findings = kept.map((r): Finding => {
     const box: RectMm = {
       x: pxToMm(r.x0, rules.dpi),
