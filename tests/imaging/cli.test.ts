@@ -6,6 +6,7 @@ import sharp from "sharp";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { rasterisePage } from "@/lib/imaging/rasterise";
 import { makeCartonPdf } from "../support/carton";
+import { simulateSheet } from "../support/simulator/index";
 
 const ROOT = path.resolve(import.meta.dirname, "../..");
 const TSX = path.join(ROOT, "node_modules/.bin/tsx");
@@ -36,6 +37,10 @@ beforeAll(async () => {
     }
   }
   await sharp(marked, raw).png().withDensity(DPI).toFile(file("dot.png"));
+  // The same sheet laid on the scanner glass, turned 0.4° and shifted into a 5 mm margin.
+  const glass = await simulateSheet(r, { geometry: { rotationDeg: 0.4, marginMm: 5 } });
+  const g = glass.scan;
+  await sharp(Buffer.from(g.data), { raw: { width: g.width, height: g.height, channels: 4 } }).png().withDensity(DPI).toFile(file("turned.png"));
   writeFileSync(file("notes.pdf"), "these are notes, not a PDF");
 });
 
@@ -85,6 +90,16 @@ describe("npm run inspect", () => {
     for (let i = 0; i < data.length; i += info.channels) if (data[i] > 180 && data[i + 1] < 60 && data[i + 2] < 60) red++;
     expect(red).toBeGreaterThan(20);
     expect(readdirSync(dir).filter((n) => n.endsWith(".tmp"))).toEqual([]);
+  });
+
+  it("aligns a scan turned 0.4° on the glass and finds nothing on the clean sheet", () => {
+    const run = inspect("--artwork", file("artwork.pdf"), "--scan", file("turned.png"), "--json");
+    expect(run.stderr).toBe("");
+    const out = JSON.parse(run.stdout);
+    expect(Math.abs(Math.abs(out.alignment.rotation_deg) - 0.4)).toBeLessThan(0.05);
+    expect(out.alignment.scale).toBeCloseTo(1, 2);
+    expect(out.findings).toEqual([]);
+    expect(run.code).toBe(0);
   });
 
   it.each([
