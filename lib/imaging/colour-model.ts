@@ -15,13 +15,15 @@ export const LUT_SIZE = 33;
 const STEP = 255 / (LUT_SIZE - 1);
 const FEATURES = 10;
 /** Kernel width of the local corrections (8-bit scan levels), the weight left to "no local correction", rounds. */
-const KERNEL_SIGMA = Number(process.env.KS ?? 10);
-const KERNEL_FLOOR = Number(process.env.KF ?? 0.02);
+const KERNEL_SIGMA = 10;
+const KERNEL_FLOOR = 0.02;
 const REFINE_ROUNDS = 3;
 const MIN_GROUP = 6;
 /** Largest spread of an artwork colour's channels (8-bit) that still counts as neutral. */
 const NEUTRAL_SPREAD = 12;
 const TONE_BIN = 8;
+/** Largest scan − artwork gap (8-bit) of a pair used for the tone curve; press drift stays well inside it. */
+const MAX_TONE_GAP = 48;
 const MIN_TONE_BIN = 20;
 
 export interface ColourModel {
@@ -193,6 +195,8 @@ function fitToneCurve(groups: ColourGroup[], pairs: SamplePairs, c: number): Flo
     const r = a[i * 3], g = a[i * 3 + 1], b = a[i * 3 + 2];
     if (Math.max(r, g, b) - Math.min(r, g, b) > NEUTRAL_SPREAD) continue;
     const sv = pairs.allScan[i * 3 + c];
+    // A pair far apart is a mark on the sheet (or a stray edge), not tone: keep it out of the curve.
+    if (Math.abs(sv - a[i * 3 + c]) > MAX_TONE_GAP) continue;
     const bin = bins[Math.min(bins.length - 1, Math.max(0, Math.floor(sv / TONE_BIN)))];
     bin.scan.push(sv);
     bin.art.push(a[i * 3 + c]);

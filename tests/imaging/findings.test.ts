@@ -1,0 +1,75 @@
+// Labelling and findings on hand-made difference bands (expected values worked out by hand).
+import { describe, expect, it } from "vitest";
+import { PIXEL_COLOUR_SHIFT, PIXEL_EXTRA_INK, PIXEL_MISSING_INK, type BandDifference } from "@/lib/imaging/compare";
+import { RegionCollector, regionsToFindings, upOf } from "@/lib/imaging/findings";
+
+function band(width: number, rows: string[], kind = PIXEL_EXTRA_INK, e = 10): BandDifference {
+  const deltaE = new Float32Array(width * rows.length);
+  const k = new Uint8Array(width * rows.length);
+  rows.forEach((row, y) => [...row].forEach((c, x) => {
+    if (c === "#") { deltaE[y * width + x] = e; k[y * width + x] = kind; }
+  }));
+  return { deltaE, score: deltaE, kind: k, flagged: 0, candidates: 0 };
+}
+
+const rules = { dpi: 254, minStrongPx: 1, minAreaMm2: 0, mergeMm: 0, pageMm: { widthMm: 10, heightMm: 10 } };
+
+describe("region labelling", () => {
+  it("joins a shape split across two bands, 8-connected", () => {
+    const c = new RegionCollector(6, 5);
+    c.addBand(band(6, ["#.....", ".#...."]), 2, 0);
+    c.addBand(band(6, ["..#...", "......", "....##"]), 3, 2);
+    const regions = c.regions().sort((a, b) => a.x0 - b.x0);
+    expect(regions).toHaveLength(2);
+    expect(regions[0]).toMatchObject({ x0: 0, y0: 0, x1: 3, y1: 3, count: 3, strongCount: 3 });
+    expect(regions[1]).toMatchObject({ x0: 4, y0: 4, x1: 6, y1: 5, count: 2 });
+  });
+
+  it("does not join rows that are not consecutive", () => {
+    const c = new RegionCollector(3);
+    c.addBand(band(3, ["#.."]), 1, 0);
+    c.addBand(band(3, ["#.."]), 1, 2);
+    expect(c.regions()).toHaveLength(2);
+  });
+});
+
+describe("regions to findings", () => {
+  it("gives boxes in mm, area, mean and max ΔE00 and the kind by weighted vote", () => {
+    const c = new RegionCollector(10, 5);
+    const b = band(10, ["..##......", "..##......"], PIXEL_MISSING_INK, 8);
+    b.deltaE[2] = 12;
+    b.score[2] = 12;
+    c.addBand(b, 2, 3);
+    const { findings } = regionsToFindings(c.regions(), rules);
+    // 254 dpi: 0.1 mm a pixel.
+    expect(findings).toEqual([
+      { xMm: 0.2, yMm: 0.3, wMm: 0.2, hMm: 0.2, areaMm2: 0.04, kind: "missing_ink", deltaE00Mean: 9, deltaE00Max: 12, up: null },
+    ]);
+  });
+
+  it("merges blobs closer than the merge distance and drops regions without enough strong pixels", () => {
+    const c = new RegionCollector(20, 5);
+    c.addBand(band(20, ["##..##.........#"]), 1, 0);
+    const weak = band(20, ["..........#....."], PIXEL_COLOUR_SHIFT, 3);
+    const merged = regionsToFindings([...c.regions(), ...(() => { const w = new RegionCollector(20, 5); w.addBand(weak, 1, 5); return w.regions(); })()], { ...rules, mergeMm: 0.25 });
+    expect(merged.findings.map((f) => [f.xMm, f.wMm])).toEqual([[0, 0.6], [1.5, 0.1]]);
+  });
+
+  it("numbers ups row-major from 1 inside the ups' area, null outside", () => {
+    const page = { widthMm: 100, heightMm: 100 };
+    const ups = { rows: 2, columns: 3, areaMm: { x: 10, y: 10, w: 90, h: 80 } };
+    expect(upOf({ x: 12, y: 12, w: 1, h: 1 }, ups, page)).toBe(1);
+    expect(upOf({ x: 95, y: 12, w: 1, h: 1 }, ups, page)).toBe(3);
+    expect(upOf({ x: 12, y: 60, w: 1, h: 1 }, ups, page)).toBe(4);
+    expect(upOf({ x: 5, y: 60, w: 1, h: 1 }, ups, page)).toBeNull();
+    expect(upOf({ x: 12, y: 60, w: 1, h: 1 }, undefined, page)).toBeNull();
+  });
+
+  it("reports a colour shift only from 1 mm² while a speck of ink may be smaller", () => {
+    const c = new RegionCollector(40, 5);
+    c.addBand(band(40, ["###", "###", "###"], PIXEL_COLOUR_SHIFT), 3, 0);
+    c.addBand(band(40, ["###", "###", "###"], PIXEL_EXTRA_INK), 3, 10);
+    const { findings } = regionsToFindings(c.regions(), { ...rules, minAreaMm2: 0.05 });
+    expect(findings.map((f) => f.kind)).toEqual(["extra_ink"]);
+  });
+});

@@ -1,0 +1,92 @@
+// Normalisation: the low-pass and the sheet's colour fit. External references: IEC 61966-2-1 (sRGB transfer
+// curve: linear 0.5 encodes to 0.7354) and colorjs.io for CIELAB (D65) of the artwork colours.
+import { beforeAll, describe, expect, it } from "vitest";
+import { deltaE00, srgb8ToLab } from "@/lib/imaging/colour";
+import { evaluateModel } from "@/lib/imaging/colour-model";
+import { fitNormalisation, lowPass, lowPassSigmaPx } from "@/lib/imaging/normalise";
+import { rasterisePage } from "@/lib/imaging/rasterise";
+import type { ArtworkRaster } from "@/lib/imaging/types";
+import { makeCartonPdf, PATCHES, type CartonLayout } from "@/tests/support/carton";
+import { simulateSheet } from "@/tests/support/simulator/index";
+
+const DPI = 150;
+let artwork: ArtworkRaster;
+let layout: CartonLayout;
+
+beforeAll(async () => {
+  const made = await makeCartonPdf({ widthMm: 150, heightMm: 110, rows: 1, columns: 2 });
+  layout = made.layout;
+  artwork = await rasterisePage(made.pdf, { dpi: DPI });
+});
+
+const press = { density: 1.1, paperWhite: [245, 243, 236] as [number, number, number], cast: [1, 0.98, 0.95] as [number, number, number], crossTalk: 0.04 };
+const whole = () => ({ x: 0, y: 0, w: artwork.width, h: artwork.height });
+const ab = (rgb: number[]) => srgb8ToLab(rgb[0], rgb[1], rgb[2]);
+
+describe("low-pass", () => {
+  it("is sized in millimetres, never under 1.2 px (max(0.12 mm, 1.2 px))", () => {
+    expect(lowPassSigmaPx(100)).toBe(1.2);
+    expect(lowPassSigmaPx(300)).toBeCloseTo(1.417, 3);
+    expect(lowPassSigmaPx(600)).toBeCloseTo(2.835, 3);
+  });
+
+  it("blends in linear light: the middle of a black-white edge is sRGB 188, not 128 (IEC 61966-2-1)", async () => {
+    const w = 40, h = 4, img = new Uint8Array(w * h * 4);
+    for (let i = 0; i < w * h; i++) img.set(i % w < 20 ? [0, 0, 0, 255] : [255, 255, 255, 255], i * 4);
+    const out = await lowPass(img, w, h, 3);
+    const mid = (out[(w + 19) * 4] + out[(w + 20) * 4]) / 2;
+    expect(mid).toBeGreaterThan(180);
+    expect(mid).toBeLessThan(196);
+  });
+});
+
+describe("colour fit", () => {
+  it("brings the saturated colour bar and the paper back within ΔE00 1.5 where the raw scan is off by 3 or more", async () => {
+    const sim = await simulateSheet(artwork, { seed: 3, photometric: { press, scanner: { gamma: 1.06, noise: 2 } } });
+    const fit = fitNormalisation(artwork, sim.scan, [1, 0, 0, 0, 1, 0], whole(), 5);
+    expect(fit.driftDeltaE00).toBeGreaterThan(3);
+    expect(fit.residualDeltaE00).toBeLessThan(1);
+    for (const patch of layout.upParts[0].colourPatches) {
+      const cx = Math.round(((patch.rect.x + patch.rect.w / 2) * DPI) / 25.4), cy = Math.round(((patch.rect.y + patch.rect.h / 2) * DPI) / 25.4);
+      const mean = [0, 0, 0];
+      for (let dy = -3; dy <= 3; dy++) for (let dx = -3; dx <= 3; dx++) for (let c = 0; c < 3; c++) mean[c] += sim.scan.data[((cy + dy) * artwork.width + cx + dx) * 4 + c] / 49;
+      const raw = deltaE00(...ab(patch.rgb), ...ab(mean));
+      const fitted = deltaE00(...ab(patch.rgb), ...ab(evaluateModel(fit.model, mean[0], mean[1], mean[2])));
+      expect(fitted, `patch ${patch.rgb}`).toBeLessThan(1.5);
+      expect(raw, `patch ${patch.rgb}`).toBeGreaterThan(fitted);
+    }
+    expect(PATCHES.length).toBe(layout.upParts[0].colourPatches.length);
+  });
+
+  it("keeps the black patch neutral and is not pulled by a pen mark on white paper", async () => {
+    const fitWith = async (defects: Parameters<typeof simulateSheet>[1]["defects"]) => {
+      const sim = await simulateSheet(artwork, { seed: 4, photometric: { press, scanner: { noise: 1 } }, defects });
+      return { sim, fit: fitNormalisation(artwork, sim.scan, [1, 0, 0, 0, 1, 0], whole(), 5) };
+    };
+    const clean = await fitWith([]);
+    const marked = await fitWith([{ type: "dot", xMm: 80, yMm: 104, diameterMm: 4 }]);
+    const black = layout.upParts[0].colourPatches.find((p) => p.rgb[0] === 25)!;
+    const cx = Math.round(((black.rect.x + black.rect.w / 2) * DPI) / 25.4), cy = Math.round(((black.rect.y + black.rect.h / 2) * DPI) / 25.4);
+    const p = (cy * artwork.width + cx) * 4;
+    for (const { sim, fit } of [clean, marked]) {
+      const out = evaluateModel(fit.model, sim.scan.data[p], sim.scan.data[p + 1], sim.scan.data[p + 2]);
+      const [, a, b] = ab(out);
+      expect(Math.hypot(a, b)).toBeLessThan(3);
+      expect(deltaE00(...ab(black.rgb), ...ab(out))).toBeLessThan(2);
+    }
+    for (const v of [30, 90, 160, 220]) {
+      expect(deltaE00(...ab(evaluateModel(clean.fit.model, v, v, v)), ...ab(evaluateModel(marked.fit.model, v, v, v)))).toBeLessThan(1);
+    }
+  });
+
+  it("does not learn a colour-shifted patch away (the fit takes each artwork colour's median)", async () => {
+    const lower = layout.upParts[1].lowerPanel!;
+    const rect = { x: lower.x + 2, y: lower.y + 1, w: 8, h: 8 };
+    const sim = await simulateSheet(artwork, { seed: 5, photometric: { press }, defects: [{ type: "colour_shift", rectMm: rect, hueDeg: 15 }] });
+    const fit = fitNormalisation(artwork, sim.scan, [1, 0, 0, 0, 1, 0], whole(), 5);
+    const p = (Math.round(((rect.y + 4) * DPI) / 25.4) * artwork.width + Math.round(((rect.x + 4) * DPI) / 25.4)) * 4;
+    const art = [artwork.data[p], artwork.data[p + 1], artwork.data[p + 2]];
+    const seen = evaluateModel(fit.model, sim.scan.data[p], sim.scan.data[p + 1], sim.scan.data[p + 2]);
+    expect(deltaE00(...ab(art), ...ab(seen))).toBeGreaterThan(3);
+  });
+});
