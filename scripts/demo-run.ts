@@ -3,13 +3,14 @@
 // reviewer who signs in sees findings at once. Uses the same upload and storage code as the app.
 // Safe to run again: an existing approved revision and sheets already uploaded are kept, never duplicated.
 process.env.NEXT_TELEMETRY_DISABLED = "1";
-import { and, eq } from "drizzle-orm";
+import { and, desc, eq } from "drizzle-orm";
 import sharp from "sharp";
 import { closeDb, db } from "../db/client";
 import { artworkRevisions, customers, inspections, jobs, scans, users } from "../db/schema";
 import type { Actor } from "../lib/auth/policy";
 import { rasterisePage } from "../lib/imaging/rasterise";
 import { approveArtwork, currentApprovedRevision, uploadArtwork } from "../lib/pipeline/artworks";
+import { retryInspection } from "../lib/pipeline/inspections";
 import { countFindings } from "../lib/pipeline/records";
 import { uploadScans } from "../lib/pipeline/scans";
 import { closeQueues } from "../lib/queue/queues";
@@ -36,7 +37,8 @@ interface DemoSheet {
 const SHEETS: DemoSheet[] = [
   { sheetNumber: 101, what: "clean sheet", rotationDeg: 0.35 },
   { sheetNumber: 102, what: "felt-tip dot", rotationDeg: -0.5, defects: [{ type: "dot", xMm: 40, yMm: 60, diameterMm: 1.2 }] },
-  { sheetNumber: 103, what: "changed word", rotationDeg: 0.2, changedWord: { up: 5 } },
+  // "250 ml" printed as "2500 ml" in up 5's 6 pt brewing instructions: an extra zero, a classic proofing miss.
+  { sheetNumber: 103, what: "changed word", rotationDeg: 0.2, changedWord: { up: 5, replacement: "2500" } },
 ];
 
 const log = (line: string) => console.log(`demo run: ${line}`);
@@ -139,7 +141,16 @@ async function main() {
       .select({ id: scans.id })
       .from(scans)
       .where(and(eq(scans.jobId, jobId), eq(scans.sheetNumber, sheet.sheetNumber)));
-    if (existing) continue;
+    if (existing) {
+      // A sheet whose inspection failed on an earlier run (worker stopped, a fault since fixed) is tried again.
+      const [last] = await db.select().from(inspections).where(eq(inspections.scanId, existing.id)).orderBy(desc(inspections.id)).limit(1);
+      if (last?.status === "failed") {
+        await retryInspection(qa, last.id);
+        started.set(sheet.sheetNumber, Date.now());
+        log(`sheet ${sheet.sheetNumber} (${sheet.what}): inspection failed before, queued again`);
+      }
+      continue;
+    }
     const tiff = await scanOf(sheet, artworkPdf, dpi);
     const t0 = Date.now();
     const { items } = await uploadScans(qa, jobId, multipart(`sheet-${String(sheet.sheetNumber).padStart(4, "0")}.tif`, tiff, { profile: PROFILE }));
@@ -154,7 +165,8 @@ async function main() {
         .from(inspections)
         .innerJoin(scans, eq(scans.id, inspections.scanId))
         .where(and(eq(scans.jobId, jobId), eq(scans.sheetNumber, sheet.sheetNumber)))
-        .orderBy(inspections.id);
+        .orderBy(desc(inspections.id))
+        .limit(1);
       return r && (r.inspection.status === "done" || r.inspection.status === "failed") ? r.inspection : null;
     });
     const t0 = started.get(sheet.sheetNumber);

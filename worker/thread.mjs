@@ -11,6 +11,13 @@ const processors = {
 export default async function process(job, token) {
   const load = processors[job.queueName];
   if (!load) throw new Error(`No processor for queue ${job.queueName}`);
-  const { default: run } = await load();
+  let run;
+  try {
+    ({ default: run } = await load());
+  } catch (error) {
+    // A module that failed to load stays failed in this thread: end the thread so BullMQ starts a fresh one.
+    setTimeout(() => process.exit(1), 100);
+    throw error;
+  }
   return run(job, token);
 }
