@@ -99,19 +99,27 @@ function planDefects(layout: CartonLayout, random: Random): { defect: DefectSpec
     throw new Error("No room left to plant a defect.");
   };
   const up = (i: number) => ups[i % ups.length];
-  // Backgrounds: the lower part of the dark panel (below its type), the tint panel left of the seal, and
-  // white paper in the top margin of the sheet.
+  // Backgrounds: the lower part of the dark panel (below its type), the plain tint, and white paper in the
+  // top margin of the sheet.
   const panel = (i: number) => {
     const p = up(i).panel;
     return { x: p.x, y: p.y + p.h * 0.62, w: p.w, h: p.h * 0.38 };
   };
+  // Plain tint: between the lower panel's large type and its seal.
   const tint = (i: number) => {
-    const t = up(i).lowerPanel ?? up(i).panel;
-    return { x: t.x, y: t.y + t.h * 0.45, w: t.w * 0.6, h: t.h * 0.55 };
+    const { lowerPanel: t, lowerType: type, seal } = up(i);
+    if (!t || !type || !seal) throw new Error("The benchmark sheet's ups are too short for a tint panel.");
+    const x0 = type.x + type.w + 1;
+    return { x: x0, y: t.y, w: seal.x - 1 - x0, h: t.h };
   };
   const paper = { x: 5, y: 1, w: layout.widthMm - 10, h: Math.max(5, layout.ups.areaMm.y - 1.5) };
   const defects: { defect: DefectSpec; background: string }[] = [];
-  let n = 0;
+  // The colour-shifted patch first; its corners and centre then keep the other defects 6 mm away.
+  const t = tint(0);
+  const rectMm = { x: t.x + 1, y: t.y + 1, w: Math.min(12, t.w - 2), h: Math.min(8, t.h - 2) };
+  for (const [fx, fy] of [[0, 0], [1, 0], [0, 1], [1, 1], [0.5, 0.5]]) placed.push({ x: rectMm.x + fx * rectMm.w, y: rectMm.y + fy * rectMm.h });
+  defects.push({ defect: { type: "colour_shift", rectMm, hueDeg: COLOUR_SHIFT_HUE_DEG }, background: "tint" });
+  let n = 1;
   for (const d of DOT_SIZES_MM) {
     for (const [background, area] of [["paper", paper], ["panel", panel(n++)], ["tint", tint(n++)]] as const) {
       const p = pick(area);
@@ -126,9 +134,6 @@ function planDefects(layout: CartonLayout, random: Random): { defect: DefectSpec
   }
   const s = pick(panel(n++));
   defects.push({ defect: { type: "scratch", x0Mm: s.x - 2, y0Mm: s.y, x1Mm: s.x + 2, y1Mm: s.y + 0.8, widthMm: 0.2 }, background: "panel" });
-  const t = tint(n++);
-  const rectMm = { x: t.x + 3, y: t.y + 1, w: Math.min(12, t.w - 6), h: Math.min(8, t.h - 2) };
-  defects.push({ defect: { type: "colour_shift", rectMm, hueDeg: COLOUR_SHIFT_HUE_DEG }, background: "tint" });
   return defects;
 }
 

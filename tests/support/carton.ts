@@ -39,6 +39,9 @@ export interface UpParts {
   bars: RectMm;
   /** Tinted lower panel with large type and a round seal; null when the up is too short for it. */
   lowerPanel: RectMm | null;
+  /** Boxes of the lower panel's large type and of its seal (the circle's bounding box). */
+  lowerType: RectMm | null;
+  seal: RectMm | null;
   /** Each word of the small print with its box. */
   words: { text: string; rect: RectMm }[];
 }
@@ -234,14 +237,23 @@ function drawUp(
   }
   const lowerTop = bars.y + bars.h + 3;
   let lowerPanel: RectMm | null = null;
+  let lowerType: RectMm | null = null;
+  let seal: RectMm | null = null;
   if (up.y + up.h - PAD_MM - lowerTop >= 12) {
     lowerPanel = { x: inner.x, y: lowerTop, w: inner.w, h: up.y + up.h - PAD_MM - lowerTop };
     draw.fillRect(lowerPanel, TINT);
-    draw.text("20 TEA BAGS", lowerPanel.x + 3, lowerPanel.y + Math.min(lowerPanel.h - 2, 10), bold, 20, PANEL);
+    const text = "20 TEA BAGS";
+    const baseline = lowerPanel.y + Math.min(lowerPanel.h - 2, 10);
+    const capMm = (20 * 0.72) / PT_PER_MM;
+    draw.text(text, lowerPanel.x + 3, baseline, bold, 20, PANEL);
+    lowerType = { x: lowerPanel.x + 3, y: baseline - capMm, w: bold.widthOfTextAtSize(text, 20) / PT_PER_MM, h: capMm };
     const radius = Math.min(lowerPanel.h / 2 - 1.5, 12);
-    draw.circle(lowerPanel.x + lowerPanel.w - radius - 3, lowerPanel.y + lowerPanel.h / 2, radius, SEAL);
+    const cx = lowerPanel.x + lowerPanel.w - radius - 3;
+    const cy = lowerPanel.y + lowerPanel.h / 2;
+    draw.circle(cx, cy, radius, SEAL);
+    seal = { x: cx - radius, y: cy - radius, w: 2 * radius, h: 2 * radius };
   }
-  return { up, panel, heading, rules, smallPrint, colourBar, colourPatches, bars, lowerPanel, words: placed };
+  return { up, panel, heading, rules, smallPrint, colourBar, colourPatches, bars, lowerPanel, lowerType, seal, words: placed };
 }
 
 /** A visibly different word of similar width: digits step up, letters swap one character. */
