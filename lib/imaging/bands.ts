@@ -25,6 +25,7 @@ export interface SheetContext {
   sigmaPx: number;
   radiusPx: number;
   lowDeltaE00: number;
+  peakDeltaE00: number;
   /** Inspected part of the page (covered by the scan), px. */
   inspectPx: PxRect;
   /** Excluded rectangles, px. */
@@ -70,7 +71,7 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
   for (let row = 0; row < core.h; row++) wideInspect.set(inspect.subarray(row * core.w, (row + 1) * core.w), row * ext.w + (core.x - ext.x));
   const diff = compareBand(
     { width: ext.w, rows: ext.h, art: artLow, scan: scanLow, coreY, coreRows: core.h, inspect: wideInspect },
-    { lowDeltaE00: ctx.lowDeltaE00, radiusPx: ctx.radiusPx, blurReachPx: Math.ceil(2 * ctx.sigmaPx), everyPixel },
+    { lowDeltaE00: ctx.lowDeltaE00, peakDeltaE00: ctx.peakDeltaE00, radiusPx: ctx.radiusPx, blurReachPx: Math.ceil(2 * ctx.sigmaPx), everyPixel },
     ctx.scratch,
   );
   ctx.timings.compare += performance.now() - mid;

@@ -9,7 +9,7 @@
 // 4. ΔE00 (CIE 142-2001) is computed for the best-matching pair only, after a ΔE*ab bound: ΔE00 never
 //    exceeded 1.39 × ΔE*ab over 300 000 random sRGB pairs, so ΔE*ab < low / 1.4 cannot reach `low`.
 import pixelmatch from "pixelmatch";
-import { deltaE00, rgbaToLab } from "./colour";
+import { D65_WHITE, deltaE00, labFFast, SRGB8_TO_LINEAR, SRGB_TO_XYZ } from "./colour";
 
 /** Class of a flagged pixel, by whether the scan lies farther from paper white than the artwork. */
 export const PIXEL_EXTRA_INK = 1;
@@ -37,6 +37,8 @@ const YIQ_MAX = 35215;
 export interface CompareSettings {
   /** Pixel level of the two-level flagging: ΔE00 at or above this is flagged. */
   lowDeltaE00: number;
+  /** Second level (the profile's ΔE00): the screen is set to pass every pixel that could reach it. */
+  peakDeltaE00: number;
   /** Registration tolerance in whole pixels (square neighbourhood). */
   radiusPx: number;
   /** How far beyond the registration radius the edge allowance looks (about 2σ of the low-pass), px. */
@@ -79,6 +81,15 @@ export class CompareScratch {
     out.fill(0);
     return out;
   }
+  private needed = new Uint8Array(0);
+  private rowMask = new Uint8Array(0);
+  need(n: number, width: number): [Uint8Array, Uint8Array] {
+    if (this.needed.length < n) this.needed = new Uint8Array(n);
+    if (this.rowMask.length < width) this.rowMask = new Uint8Array(width);
+    const out = this.needed.subarray(0, n);
+    out.fill(0);
+    return [out, this.rowMask.subarray(0, width)];
+  }
   lab(n: number): [Float32Array, Float32Array] {
     if (this.labArt.length < n) {
       this.labArt = new Float32Array(n);
@@ -102,7 +113,10 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
   let screen: Uint8Array | null = null;
   if (!settings.everyPixel) {
     screen = scratch.screenBuffer(n * 4);
-    const threshold = Math.sqrt((YIQ_PER_DE00_SQUARED * low * low) / YIQ_MAX);
+    // Set on the second level: a region is kept only for pixels that reach it, and set on the first the
+    // screen would pass nearly every pixel of a noisy scan.
+    const peak = settings.peakDeltaE00;
+    const threshold = Math.sqrt((YIQ_PER_DE00_SQUARED * peak * peak) / YIQ_MAX);
     const count = pixelmatch(
       band.art.subarray(coreStart, coreStart + n * 4),
       band.scan.subarray(coreStart, coreStart + n * 4),
@@ -113,14 +127,14 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
     );
     if (count === 0) return { deltaE, score, kind, flagged: 0, candidates: 0 };
   }
-  const [la, ls] = scratch.lab(width * rows * 3);
-  rgbaToLab(band.art, la);
-  rgbaToLab(band.scan, ls);
-
   const r = settings.radiusPx;
   // The edge allowance looks as far as an edge's blur reaches: a thin rule is lighter along its whole middle
   // when the scan is softer, although its middle has no contrast within the registration radius.
   const reach = r + settings.blurReachPx;
+  const offX: number[] = [], offY: number[] = [];
+  for (let dy = -reach; dy <= reach; dy++) for (let dx = -reach; dx <= reach; dx++) { offX.push(dx); offY.push(dy); }
+  const [la, ls] = scratch.lab(width * rows * 3);
+  labAround(band, screen, reach, la, ls, scratch);
   const bound = (low / DE00_OVER_DEAB) ** 2;
   const inspect = band.inspect;
   let flagged = 0;
@@ -148,23 +162,25 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
           if (d2 < best2) { best2 = d2; q2 = q; }
         }
       }
+      // Edge allowance: the artwork's own contrast around the pixel (extent of its Lab values).
+      let lMin = al, lMax = al, aMin = aa, aMax = aa, bMin = ab, bMax = ab;
+      for (let k = 0; k < offX.length; k++) {
+        const xx = x + offX[k], yy = y + offY[k];
+        if (xx < 0 || yy < 0 || xx >= width || yy >= rows) continue;
+        const q = (yy * width + xx) * 3;
+        const l = la[q], a = la[q + 1], b = la[q + 2];
+        if (l < lMin) lMin = l; else if (l > lMax) lMax = l;
+        if (a < aMin) aMin = a; else if (a > aMax) aMax = a;
+        if (b < bMin) bMin = b; else if (b > bMax) bMax = b;
+      }
+      const contrast = Math.sqrt((lMax - lMin) ** 2 + (aMax - aMin) ** 2 + (bMax - bMin) ** 2);
+      // ΔE00 is at most 1.4 × ΔE*ab: skip the costly ΔE00 where even that cannot clear the edge allowance.
+      const worst = Math.sqrt(Math.max(best1 < bound ? 0 : best1, best2 < bound ? 0 : best2));
+      if (DE00_OVER_DEAB * worst < low + EDGE_ALLOWANCE * contrast && !settings.everyPixel) continue;
       const e1 = best1 < bound ? 0 : deltaE00(la[q1], la[q1 + 1], la[q1 + 2], sl, sa, sb);
       const e2 = best2 < bound ? 0 : deltaE00(al, aa, ab, ls[q2], ls[q2 + 1], ls[q2 + 2]);
       const e = e1 > e2 ? e1 : e2;
       if (e < low && !settings.everyPixel) continue;
-      // Edge allowance: the artwork's own contrast around the pixel (extent of its Lab values).
-      let lMin = al, lMax = al, aMin = aa, aMax = aa, bMin = ab, bMax = ab;
-      const cy0 = Math.max(0, y - reach), cy1 = Math.min(rows - 1, y + reach);
-      const cx0 = Math.max(0, x - reach), cx1 = Math.min(width - 1, x + reach);
-      for (let yy = cy0; yy <= cy1; yy++) {
-        for (let xx = cx0, q = (yy * width + cx0) * 3; xx <= cx1; xx++, q += 3) {
-          const l = la[q], a = la[q + 1], b = la[q + 2];
-          if (l < lMin) lMin = l; else if (l > lMax) lMax = l;
-          if (a < aMin) aMin = a; else if (a > aMax) aMax = a;
-          if (b < bMin) bMin = b; else if (b > bMax) bMax = b;
-        }
-      }
-      const contrast = Math.sqrt((lMax - lMin) ** 2 + (aMax - aMin) ** 2 + (bMax - bMin) ** 2);
       const k = classify(al, aa, ab, sl, sa, sb);
       const s = e - (k === PIXEL_COLOUR_SHIFT ? EDGE_ALLOWANCE_COLOUR : EDGE_ALLOWANCE) * contrast;
       if (s < low && !settings.everyPixel) continue;
@@ -191,4 +207,59 @@ function classify(al: number, aa: number, ab: number, sl: number, sa: number, sb
   if (ink > 0.5 * diff) return PIXEL_EXTRA_INK;
   if (ink < -0.5 * diff) return PIXEL_MISSING_INK;
   return PIXEL_COLOUR_SHIFT;
+}
+
+// sRGB 8-bit → CIELAB (D65) as in colour.ts's rgbaToLab, one pixel at a time: rows of the matrix pre-divided
+// by the white.
+const M = SRGB_TO_XYZ;
+const M0 = M[0] / D65_WHITE[0], M1 = M[1] / D65_WHITE[0], M2 = M[2] / D65_WHITE[0];
+const M6 = M[6] / D65_WHITE[2], M7 = M[7] / D65_WHITE[2], M8 = M[8] / D65_WHITE[2];
+
+function labOf(rgba: Uint8Array, i: number, out: Float32Array): void {
+  const lut = SRGB8_TO_LINEAR;
+  const r = lut[rgba[i * 4]], g = lut[rgba[i * 4 + 1]], b = lut[rgba[i * 4 + 2]];
+  const fx = labFFast(M0 * r + M1 * g + M2 * b);
+  const fy = labFFast(M[3] * r + M[4] * g + M[5] * b);
+  const fz = labFFast(M6 * r + M7 * g + M8 * b);
+  out[i * 3] = 116 * fy - 16;
+  out[i * 3 + 1] = 500 * (fx - fy);
+  out[i * 3 + 2] = 200 * (fy - fz);
+}
+
+/**
+ * CIELAB of both images, but only within `reach` of a pixel the screen passed: on a clean sheet that is a
+ * small part of the band, and the conversion is the costliest per-pixel step after the screen itself.
+ */
+function labAround(band: BandPair, screen: Uint8Array | null, reach: number, la: Float32Array, ls: Float32Array, scratch: CompareScratch): void {
+  const { width, rows, coreY, coreRows, inspect } = band;
+  const [need, dilated] = scratch.need(width * rows, width);
+  if (screen === null) need.fill(1);
+  else {
+    for (let cy = 0; cy < coreRows; cy++) {
+      let any = false;
+      let last = -1e9;
+      for (let x = 0; x < width; x++) {
+        const i = cy * width + x;
+        if (screen[i * 4 + 3] !== 0 && inspect[i] !== 0) { last = x; any = true; }
+        dilated[x] = x - last <= reach ? 1 : 0;
+      }
+      if (!any) continue;
+      last = 1e9;
+      for (let x = width - 1; x >= 0; x--) {
+        const i = cy * width + x;
+        if (screen[i * 4 + 3] !== 0 && inspect[i] !== 0) last = x;
+        if (last - x <= reach) dilated[x] = 1;
+      }
+      const y = cy + coreY;
+      for (let yy = Math.max(0, y - reach); yy <= Math.min(rows - 1, y + reach); yy++) {
+        const o = yy * width;
+        for (let x = 0; x < width; x++) need[o + x] |= dilated[x];
+      }
+    }
+  }
+  for (let i = 0; i < width * rows; i++) {
+    if (need[i] === 0) continue;
+    labOf(band.art, i, la);
+    labOf(band.scan, i, ls);
+  }
 }

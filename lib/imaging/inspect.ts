@@ -70,6 +70,7 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
     sigmaPx,
     radiusPx,
     lowDeltaE00: Math.max(1, 0.5 * peak),
+    peakDeltaE00: peak,
     inspectPx,
     excludedPx: profile.excludedAreasMm.map((r) => rectMmToPx(r, dpi, artwork.width, artwork.height)),
     scratch: new CompareScratch(),

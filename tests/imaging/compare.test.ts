@@ -21,7 +21,7 @@ function pair(art: Uint8Array, scan: Uint8Array): BandPair {
   return { width: W, rows: H, art, scan, coreY: 0, coreRows: H, inspect: new Uint8Array(W * H).fill(1) };
 }
 
-const settings = { lowDeltaE00: 2, radiusPx: 1, blurReachPx: 3 };
+const settings = { lowDeltaE00: 2, peakDeltaE00: 4, radiusPx: 1, blurReachPx: 3 };
 
 describe("compareBand", () => {
   it("flags nothing on identical images (pixelmatch's fast path)", () => {
