@@ -29,6 +29,9 @@ const MIN_TONE_BIN = 20;
 export interface ColourModel {
   /** LUT_SIZE³ × 3 output values (0–255), red index slowest. */
   lut: Float32Array;
+  /** Cache of applyColourModel, filled on use (one model belongs to one sheet, one thread). */
+  cacheKeys?: Int32Array;
+  cacheValues?: Int32Array;
 }
 
 export function identityModel(): ColourModel {
@@ -39,12 +42,24 @@ export function identityModel(): ColourModel {
   return { lut };
 }
 
+/** Slots of the direct-mapped cache of applyColourModel: low-passed scans repeat their colours a lot. */
+const CACHE_SLOTS = 1 << 16;
+
 /** Applies the model to RGBA pixels in place (alpha untouched), trilinear in the table. Allocation-free. */
 export function applyColourModel(model: ColourModel, rgba: Uint8Array): void {
   const lut = model.lut;
   const s = (LUT_SIZE - 1) / 255;
   const sg = LUT_SIZE * 3, sr = LUT_SIZE * LUT_SIZE * 3;
+  const keys = (model.cacheKeys ??= new Int32Array(CACHE_SLOTS).fill(-1));
+  const values = (model.cacheValues ??= new Int32Array(CACHE_SLOTS));
   for (let i = 0; i < rgba.length; i += 4) {
+    const key = (rgba[i] << 16) | (rgba[i + 1] << 8) | rgba[i + 2];
+    const slot = ((key * 2654435761) >>> 16) & (CACHE_SLOTS - 1);
+    if (keys[slot] === key) {
+      const v = values[slot];
+      rgba[i] = v >>> 16; rgba[i + 1] = (v >>> 8) & 255; rgba[i + 2] = v & 255;
+      continue;
+    }
     const fr = rgba[i] * s, fg = rgba[i + 1] * s, fb = rgba[i + 2] * s;
     let ir = fr | 0, ig = fg | 0, ib = fb | 0;
     if (ir > LUT_SIZE - 2) ir = LUT_SIZE - 2;
@@ -62,6 +77,8 @@ export function applyColourModel(model: ColourModel, rgba: Uint8Array): void {
       const v = c0 + (c1 - c0) * dr;
       rgba[i + c] = v <= 0 ? 0 : v >= 255 ? 255 : (v + 0.5) | 0;
     }
+    keys[slot] = key;
+    values[slot] = (rgba[i] << 16) | (rgba[i + 1] << 8) | rgba[i + 2];
   }
 }
 

@@ -58,6 +58,8 @@ export interface NormalisationFit {
   flatSamples: number;
 }
 
+const DRIFT_SAMPLES = 4000;
+
 /** Fewer flat samples than this and the scan is compared as it is (no colour fit). */
 const MIN_FLAT_SAMPLES = 30;
 
@@ -76,19 +78,22 @@ export function fitNormalisation(
 }
 
 function measureDrift(pairs: SamplePairs, model: ColourModel): { drift: number; residual: number } {
-  const n = pairs.flatCount;
-  if (n === 0) return { drift: 0, residual: 0 };
+  if (pairs.flatCount === 0) return { drift: 0, residual: 0 };
+  // A median needs no more than a few thousand samples; take every k-th.
+  const step = Math.max(1, Math.floor(pairs.flatCount / DRIFT_SAMPLES));
+  const n = Math.floor(pairs.flatCount / step);
   const before = new Float32Array(n);
   const after = new Float32Array(n);
-  for (let i = 0; i < n; i++) {
+  for (let j = 0; j < n; j++) {
+    const i = j * step;
     const a = pairs.flatArt.subarray(i * 3, i * 3 + 3);
     const s = pairs.flatScan.subarray(i * 3, i * 3 + 3);
     const [l1, a1, b1] = srgbToLab(a[0] / 255, a[1] / 255, a[2] / 255);
     const [l2, a2, b2] = srgbToLab(s[0] / 255, s[1] / 255, s[2] / 255);
-    before[i] = deltaE00(l1, a1, b1, l2, a2, b2);
+    before[j] = deltaE00(l1, a1, b1, l2, a2, b2);
     const m = evaluateModel(model, s[0], s[1], s[2]);
     const [l3, a3, b3] = srgbToLab(m[0] / 255, m[1] / 255, m[2] / 255);
-    after[i] = deltaE00(l1, a1, b1, l3, a3, b3);
+    after[j] = deltaE00(l1, a1, b1, l3, a3, b3);
   }
   before.sort();
   after.sort();

@@ -15,7 +15,7 @@ export interface SamplePairs {
   allCount: number;
 }
 
-const TARGET_GRID_POINTS = 120_000;
+const TARGET_GRID_POINTS = 60_000;
 /** A flat artwork window varies by at most this many 8-bit codes per channel. */
 const FLAT_TOLERANCE = 2;
 
