@@ -18,7 +18,8 @@ import { ensureBucket, getObjectBuffer } from "../storage/objects";
 import { makeCartonPdf, type CartonOptions } from "../tests/support/carton";
 import { simulateSheet, type SimulateOptions } from "../tests/support/simulator/index";
 
-const JOB_NUMBER = "WF-24130";
+// Overridable so a second demo job can be made beside the first (e.g. on the test services).
+const JOB_NUMBER = process.env.DEMO_JOB_NUMBER ?? "WF-24130";
 const CUSTOMER = "Kestrelmoor Tea Company";
 const CARTON: CartonOptions = { widthMm: 297, heightMm: 210, rows: 2, columns: 3 };
 const PROFILE = "standard-food";
