@@ -45,10 +45,12 @@ async function main() {
     // Bad input was recorded by the processor in plain words; here only the end of retries for other causes.
     if (job && error.name !== "UnrecoverableError" && isFinalFailure(job, error)) {
       const id = job.data.inspectionId;
+      // The technical detail goes to this log; people get plain words.
+      log(`inspection ${id}: giving up after ${job.attemptsMade} attempts: ${error.stack ?? error.message}`);
       await failInspection(
         id,
         "inspection_error",
-        `The inspection stopped after ${job.attemptsMade} attempts because of a problem on our side (${error.message}). Press Retry; if it fails again, tell an administrator.`,
+        `The inspection stopped after ${job.attemptsMade} attempts because of a problem on our side, not with the scan. Press Retry; if it fails again, tell an administrator.`,
       ).catch((e) => log(`recording the failure of inspection ${id} failed: ${e}`));
       await enqueueMail({ kind: "sheet_failed", inspectionId: id, reason: "inspection_failed" }, job.attemptsMade).catch(() => undefined);
     }

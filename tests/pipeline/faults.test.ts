@@ -125,6 +125,22 @@ describe("pipeline faults", () => {
     expect(worker!.child.exitCode).toBeNull();
   });
 
+  it("the mail fake down: the inspection still completes, and the e-mail follows once mail is back", async () => {
+    await stopService("maildev");
+    try {
+      const item = await uploadOne("sheet-0503.png", await sharp(scanPng).png({ compressionLevel: 5 }).toBuffer());
+      const finished = await done(item.inspectionId!, 60_000);
+      expect(finished.status).toBe("done");
+      await worker!.waitFor(/mail mail-sheet_ready-\d+-\d+: not sent yet/, 30_000);
+    } finally {
+      startMissingServices();
+    }
+    // The mail queue retries with exponential backoff (10 s, 20 s, …).
+    const mail = await until("e-mail after the outage", async () =>
+      (await maildev.messages()).find((m) => m.subject.includes("sheet 503") && m.subject.includes("P-")), 90_000, 1000);
+    expect(mail.subject).toMatch(/^Ready for review/);
+  });
+
   it("storage goes down in the middle of an upload: a clean error, no row, no object", async () => {
     const before = (await db.select().from(scans).where(eq(scans.jobId, fx.jobId))).length;
     const keysBefore = new Set(await listKeys("scans/"));

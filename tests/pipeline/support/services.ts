@@ -23,7 +23,7 @@ const alive = (pid: number) => {
 };
 
 /** Stops one service the way a crash or an operator would, and waits until its process has gone. */
-export async function stopService(name: "redis" | "s3rver"): Promise<void> {
+export async function stopService(name: "redis" | "s3rver" | "maildev"): Promise<void> {
   const pid = pidOf(name);
   process.kill(pid, "SIGTERM");
   for (let i = 0; i < 100 && alive(pid); i++) await new Promise((r) => setTimeout(r, 100));
