@@ -34,6 +34,29 @@ export interface SheetContext {
   timings: { normalise: number; compare: number };
 }
 
+/**
+ * Low-passed artwork bands, kept per artwork pixel buffer: every sheet of a job is compared with the same
+ * artwork, and its low-pass is a third of the per-sheet work. Only artworks up to CACHE_MAX_PIXELS are kept
+ * (the copy is as large as the artwork), full-width bands only; entries go when the artwork is collected. Per
+ * thread, never shared.
+ */
+const artworkCache = new WeakMap<ArrayBufferLike, Map<string, Uint8Array>>();
+const CACHE_MAX_PIXELS = 40_000_000;
+
+function cachedArtworkLowPass(art: RgbaImage, ext: PxRect, sigmaPx: number, make: () => Promise<Uint8Array>): Promise<Uint8Array> {
+  if (art.width * art.height > CACHE_MAX_PIXELS || ext.w !== art.width) return make();
+  const buffer = art.data.buffer;
+  let bands = artworkCache.get(buffer);
+  if (!bands) artworkCache.set(buffer, (bands = new Map()));
+  const key = `${art.data.byteOffset}:${art.width}x${art.height}:${ext.x},${ext.y},${ext.w},${ext.h}:${sigmaPx}`;
+  const hit = bands.get(key);
+  if (hit) return Promise.resolve(hit);
+  return make().then((low) => {
+    bands!.set(key, low);
+    return low;
+  });
+}
+
 export interface RectDifference extends BandDifference {
   rect: PxRect;
 }
@@ -57,7 +80,7 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
     : cropRgba(art.data, art.width, ext);
   const scanPatch = ctx.source(ext);
   const [artLow, scanLow] = await Promise.all([
-    lowPass(artPatch, ext.w, ext.h, ctx.sigmaPx),
+    cachedArtworkLowPass(art, ext, ctx.sigmaPx, () => lowPass(artPatch, ext.w, ext.h, ctx.sigmaPx)),
     lowPass(scanPatch.rgba, ext.w, ext.h, ctx.sigmaPx),
   ]);
   applyColourModel(ctx.model, scanLow);
@@ -95,16 +118,34 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
 function inspectMask(ctx: SheetContext, core: PxRect, ext: PxRect, mask: Uint8Array, erode: number): Uint8Array {
   const out = new Uint8Array(core.w * core.h);
   const area = intersect(core, ctx.inspectPx);
-  const covered = (x: number, y: number) => {
-    if (x < ext.x || y < ext.y || x >= ext.x + ext.w || y >= ext.y + ext.h) return true;
-    return mask[(y - ext.y) * ext.w + (x - ext.x)] === 1;
+  // The covered part of a row is one run (the scan's footprint is a convex quadrilateral): keep its ends.
+  const lo = new Int32Array(ext.h).fill(ext.w), hi = new Int32Array(ext.h).fill(-1);
+  for (let row = 0; row < ext.h; row++) {
+    const o = row * ext.w;
+    let x = 0;
+    while (x < ext.w && mask[o + x] !== 1) x++;
+    if (x === ext.w) continue;
+    let y = ext.w - 1;
+    while (mask[o + y] !== 1) y--;
+    lo[row] = x;
+    hi[row] = y;
+  }
+  // Rows beyond the patch lie beyond the page: nothing there to mix in.
+  const atEdgeTop = ext.y === 0, atEdgeBottom = ext.y + ext.h >= ctx.artwork.height;
+  const span = (row: number): [number, number] => {
+    if (row < 0) return atEdgeTop ? [lo[0], hi[0]] : [ext.w, -1];
+    if (row >= ext.h) return atEdgeBottom ? [lo[ext.h - 1], hi[ext.h - 1]] : [ext.w, -1];
+    return [lo[row], hi[row]];
   };
+  const leftEdge = ext.x === 0 ? 0 : erode, rightEdge = ext.x + ext.w >= ctx.artwork.width ? 0 : erode;
   for (let y = area.y; y < area.y + area.h; y++) {
-    for (let x = area.x; x < area.x + area.w; x++) {
-      if (mask[(y - ext.y) * ext.w + (x - ext.x)] !== 1) continue;
-      if (!covered(x - erode, y) || !covered(x + erode, y) || !covered(x, y - erode) || !covered(x, y + erode)) continue;
-      out[(y - core.y) * core.w + (x - core.x)] = 1;
-    }
+    const row = y - ext.y;
+    const [l0, h0] = span(row), [l1, h1] = span(row - erode), [l2, h2] = span(row + erode);
+    let from = Math.max(l0 + (l0 === 0 ? leftEdge : erode), l1, l2) + ext.x;
+    let to = Math.min(h0 - (h0 === ext.w - 1 ? rightEdge : erode), h1, h2) + ext.x;
+    from = Math.max(from, area.x);
+    to = Math.min(to, area.x + area.w - 1);
+    if (to >= from) out.fill(1, (y - core.y) * core.w + (from - core.x), (y - core.y) * core.w + (to - core.x) + 1);
   }
   for (const e of ctx.excludedPx) {
     const r = intersect(e, core);
