@@ -154,16 +154,25 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       const x0 = Math.max(0, x - r), x1 = Math.min(width - 1, x + r);
       // Scan pixel against artwork neighbours, and artwork pixel against scan neighbours.
       let best1 = direct, q1 = p, best2 = direct, q2 = p;
+      let lMin = al, lMax = al, aMin = aa, aMax = aa, bMin = ab, bMax = ab;
       for (let yy = y0; yy <= y1 && (best1 >= bound || best2 >= bound); yy++) {
         for (let xx = x0, q = (yy * width + x0) * 3; xx <= x1; xx++, q += 3) {
-          const d1 = (sl - la[q]) ** 2 + (sa - la[q + 1]) ** 2 + (sb - la[q + 2]) ** 2;
+          const l = la[q], a = la[q + 1], b = la[q + 2];
+          const d1 = (sl - l) ** 2 + (sa - a) ** 2 + (sb - b) ** 2;
           if (d1 < best1) { best1 = d1; q1 = q; }
           const d2 = (al - ls[q]) ** 2 + (aa - ls[q + 1]) ** 2 + (ab - ls[q + 2]) ** 2;
           if (d2 < best2) { best2 = d2; q2 = q; }
+          if (l < lMin) lMin = l; else if (l > lMax) lMax = l;
+          if (a < aMin) aMin = a; else if (a > aMax) aMax = a;
+          if (b < bMin) bMin = b; else if (b > bMax) bMax = b;
         }
       }
+      // ΔE00 is at most 1.4 × ΔE*ab: skip the costly ΔE00 where even that cannot clear the edge allowance,
+      // first with the contrast of the registration square (a lower bound), then with the full reach.
+      const worst = Math.sqrt(Math.max(best1 < bound ? 0 : best1, best2 < bound ? 0 : best2));
+      const nearContrast = Math.sqrt((lMax - lMin) ** 2 + (aMax - aMin) ** 2 + (bMax - bMin) ** 2);
+      if (DE00_OVER_DEAB * worst < low + EDGE_ALLOWANCE * nearContrast && !settings.everyPixel) continue;
       // Edge allowance: the artwork's own contrast around the pixel (extent of its Lab values).
-      let lMin = al, lMax = al, aMin = aa, aMax = aa, bMin = ab, bMax = ab;
       for (let k = 0; k < offX.length; k++) {
         const xx = x + offX[k], yy = y + offY[k];
         if (xx < 0 || yy < 0 || xx >= width || yy >= rows) continue;
@@ -174,8 +183,6 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
         if (b < bMin) bMin = b; else if (b > bMax) bMax = b;
       }
       const contrast = Math.sqrt((lMax - lMin) ** 2 + (aMax - aMin) ** 2 + (bMax - bMin) ** 2);
-      // ΔE00 is at most 1.4 × ΔE*ab: skip the costly ΔE00 where even that cannot clear the edge allowance.
-      const worst = Math.sqrt(Math.max(best1 < bound ? 0 : best1, best2 < bound ? 0 : best2));
       if (DE00_OVER_DEAB * worst < low + EDGE_ALLOWANCE * contrast && !settings.everyPixel) continue;
       const e1 = best1 < bound ? 0 : deltaE00(la[q1], la[q1 + 1], la[q1 + 2], sl, sa, sb);
       const e2 = best2 < bound ? 0 : deltaE00(al, aa, ab, ls[q2], ls[q2 + 1], ls[q2 + 2]);
