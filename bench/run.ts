@@ -209,10 +209,12 @@ async function detection(): Promise<void> {
       `Engine time a sheet (full, in a worker thread): median ${f1(median(ms))} ms.`,
     "",
   );
-  const missed = truths.filter((t) => !t.found && t.sizeMm >= 0.3);
-  if (missed.length) {
-    out.push(`Missed at 0.3 mm and above: ${missed.map((t) => `${t.type} ${f2(t.sizeMm)} mm on ${t.background}`).join(", ")}.`, "");
+  const missed = new Map<string, number>();
+  for (const t of truths.filter((t) => !t.found)) {
+    const key = `${t.type.replace("_", " ")} ${t.type === "dot" || t.type === "void" ? `${t.sizeMm} mm ` : ""}on ${t.background}`;
+    missed.set(key, (missed.get(key) ?? 0) + 1);
   }
+  if (missed.size) out.push(`Missed, by kind and background: ${[...missed].map(([k, n]) => `${k} × ${n}`).join("; ")}.`, "");
 }
 
 /** B1 at 300 dpi in child processes: the scan is made in one, the measured inspection runs in another. */
