@@ -61,21 +61,9 @@ export interface RectDifference extends BandDifference {
   rect: PxRect;
 }
 
-/**
- * The artwork is low-passed a little more than the scan: the scan has already been through the scanner's
- * optics and a bilinear resampling into the artwork grid, the rendered artwork through neither, and unmatched
- * they differ along every fine bar and rule. SCAN_BLUR_PX is measured on simulated sheets (1 px σ cut the
- * false findings on 0.3 mm bars at 100 dpi from 13 to 5 a B2 sheet; 1.3 px over-blurred), not a scanner
- * figure: a scanner with its own measured line spread would set it.
- */
-const SCAN_BLUR_PX = 1;
-function artworkSigma(ctx: SheetContext): number {
-  return Math.hypot(ctx.sigmaPx, SCAN_BLUR_PX);
-}
-
 /** Pixels the low-pass reaches beyond a core rectangle, plus the registration radius. */
 export function haloPx(ctx: SheetContext): number {
-  return Math.ceil(3 * artworkSigma(ctx)) + ctx.radiusPx + Math.ceil(2 * ctx.sigmaPx) + 1;
+  return Math.ceil(3 * ctx.sigmaPx) + ctx.radiusPx + Math.ceil(2 * ctx.sigmaPx) + 1;
 }
 
 export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = false): Promise<RectDifference> {
@@ -92,7 +80,7 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
     : cropRgba(art.data, art.width, ext);
   const scanPatch = ctx.source(ext);
   const [artLow, scanLow] = await Promise.all([
-    cachedArtworkLowPass(art, ext, artworkSigma(ctx), () => lowPass(artPatch, ext.w, ext.h, artworkSigma(ctx))),
+    cachedArtworkLowPass(art, ext, ctx.sigmaPx, () => lowPass(artPatch, ext.w, ext.h, ctx.sigmaPx)),
     lowPass(scanPatch.rgba, ext.w, ext.h, ctx.sigmaPx),
   ]);
   applyColourModel(ctx.model, scanLow);
