@@ -204,15 +204,19 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
 
 /**
  * Extra ink when the scan lies farther from paper white (L* 100, a* = b* = 0) than the artwork by at least half
- * the difference, missing ink when nearer by as much, otherwise a sideways move in hue or chroma: a colour shift.
+ * the difference, or darker by as much; missing ink when nearer or lighter by as much; otherwise a sideways
+ * move in hue or chroma: a colour shift.
  */
 function classify(al: number, aa: number, ab: number, sl: number, sa: number, sb: number): number {
   const fromWhiteArt = Math.sqrt((100 - al) ** 2 + aa * aa + ab * ab);
   const fromWhiteScan = Math.sqrt((100 - sl) ** 2 + sa * sa + sb * sb);
   const ink = fromWhiteScan - fromWhiteArt;
   const diff = Math.sqrt((sl - al) ** 2 + (sa - aa) ** 2 + (sb - ab) ** 2);
-  if (ink > 0.5 * diff) return PIXEL_EXTRA_INK;
-  if (ink < -0.5 * diff) return PIXEL_MISSING_INK;
+  // A change of lightness by half the difference is ink too: a dark mark on a light tint lands on no
+  // straight line from paper white, yet it is extra ink, not a shift of the tint's hue.
+  const dl = sl - al;
+  if (ink > 0.5 * diff || dl < -0.5 * diff) return PIXEL_EXTRA_INK;
+  if (ink < -0.5 * diff || dl > 0.5 * diff) return PIXEL_MISSING_INK;
   return PIXEL_COLOUR_SHIFT;
 }
 
