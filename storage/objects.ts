@@ -71,10 +71,12 @@ export function startPut(key: string, contentType: string, storage: Storage = de
     input,
     done,
     async cancel(): Promise<void> {
-      await upload.abort().catch(() => undefined);
-      input.destroy();
+      // Fail the body rather than calling upload.abort(): abort() settles `done` at once while a request already
+      // sent goes on and may store the object after we deleted it. A failed body lets lib-storage finish every
+      // request in flight and abort the multipart upload before `done` settles; then nothing can arrive later.
+      input.destroy(new Error("upload cancelled"));
       await done.catch(() => undefined);
-      // A single-part put may have completed just before the abort: remove it.
+      // A single-part put may have completed before the body failed: remove it.
       await deleteObject(key, storage).catch(() => undefined);
     },
   };
