@@ -4,7 +4,8 @@ import { useActionState, useState } from "react";
 import { inviteAction } from "@/app/(workspace)/admin/users/actions";
 import { buttonClass, Field, inputClass } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
-import { ROLE_LABELS, ROLES, type Role } from "@/lib/auth/policy";
+import { CustomerOptions, RoleOptions } from "@/components/admin/select-options";
+import type { Role } from "@/lib/auth/policy";
 
 export function InviteForm({ customers, validForHours }: { customers: { id: number; name: string }[]; validForHours: number }) {
   const [state, action, pending] = useActionState(inviteAction, {});
@@ -22,24 +23,13 @@ export function InviteForm({ customers, validForHours }: { customers: { id: numb
       </Field>
       <Field label="Role" name="role" error={errors.role}>
         <select id="role" name="role" value={role} onChange={(e) => setRole(e.target.value as Role)} className={inputClass}>
-          {ROLES.map((r) => (
-            <option key={r} value={r}>
-              {ROLE_LABELS[r]}
-            </option>
-          ))}
+          <RoleOptions />
         </select>
       </Field>
       {role === "customer" && (
         <Field label="Customer" name="customerId" error={errors.customerId} hint="Customer users see this customer's jobs only.">
           <select id="customerId" name="customerId" required defaultValue={state.values?.customerId ?? ""} className={inputClass}>
-            <option value="" disabled>
-              Choose a customer…
-            </option>
-            {customers.map((c) => (
-              <option key={c.id} value={c.id}>
-                {c.name}
-              </option>
-            ))}
+            <CustomerOptions customers={customers} placeholder="Choose a customer…" />
           </select>
         </Field>
       )}

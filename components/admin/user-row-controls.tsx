@@ -2,10 +2,11 @@
 
 import { useActionState, useState } from "react";
 import { changeRoleAction, resendInviteAction, setDisabledAction } from "@/app/(workspace)/admin/users/actions";
+import { CustomerOptions, RoleOptions } from "@/components/admin/select-options";
 import { quietButtonClass } from "@/components/ui/field";
+import { ROLE_LABELS, type Role } from "@/lib/auth/policy";
 
 const dangerButtonClass = quietButtonClass.replace("text-ink", "text-danger");
-import { ROLE_LABELS, ROLES, type Role } from "@/lib/auth/policy";
 
 const selectClass = "rounded-md border border-rule bg-surface px-2 py-1.5 text-sm focus:border-accent focus:outline-none";
 
@@ -24,22 +25,11 @@ export function RoleControl({ user, customers, self }: Props) {
     <form action={action} className="flex flex-wrap items-center gap-2">
       <input type="hidden" name="userId" value={user.id} />
       <select name="role" aria-label={`Role of ${user.name}`} value={role} onChange={(e) => setRole(e.target.value as Role)} className={selectClass}>
-        {ROLES.map((r) => (
-          <option key={r} value={r}>
-            {ROLE_LABELS[r]}
-          </option>
-        ))}
+        <RoleOptions />
       </select>
       {role === "customer" && (
         <select name="customerId" aria-label={`Customer of ${user.name}`} defaultValue={user.customerId ?? ""} required className={selectClass}>
-          <option value="" disabled>
-            Customer…
-          </option>
-          {customers.map((c) => (
-            <option key={c.id} value={c.id}>
-              {c.name}
-            </option>
-          ))}
+          <CustomerOptions customers={customers} placeholder="Customer…" />
         </select>
       )}
       <button type="submit" disabled={pending} className={quietButtonClass}>
