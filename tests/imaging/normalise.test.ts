@@ -59,7 +59,7 @@ describe("colour fit", () => {
   });
 
   it("keeps the black patch neutral and is not pulled by a pen mark on white paper", async () => {
-    const fitWith = async (defects: Parameters<typeof simulateSheet>[1]["defects"]) => {
+    const fitWith = async (defects: NonNullable<Parameters<typeof simulateSheet>[1]>["defects"]) => {
       const sim = await simulateSheet(artwork, { seed: 4, photometric: { press, scanner: { noise: 1 } }, defects });
       return { sim, fit: fitNormalisation(artwork, sim.scan, [1, 0, 0, 0, 1, 0], whole(), 5) };
     };
