@@ -21,12 +21,8 @@ load_dotenv() {
 ensure_node_modules() {
   if [[ ! -d "$ROOT/node_modules/next" ]]; then
     echo "Installing npm dependencies…"
-    if [[ -f "$ROOT/package-lock.json" ]]; then
-      # npm ci refuses a lock without entries for optional platform packages the registry lacks; npm install
-      # then installs the same locked versions.
-      (cd "$ROOT" && { npm ci --no-audit --no-fund || npm install --no-audit --no-fund; })
-    else
-      (cd "$ROOT" && npm install --no-audit --no-fund)
-    fi
+    # npm install, not npm ci: npm ci refuses this lock because it lacks entries for odiff-bin's optional
+    # packages of other platforms, which the registry does not have; npm install keeps the locked versions.
+    (cd "$ROOT" && npm install --no-audit --no-fund)
   fi
 }
