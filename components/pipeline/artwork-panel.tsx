@@ -5,10 +5,10 @@ import { Notice } from "@/components/ui/notice";
 import type { JobPipelineView } from "@/lib/pipeline/view";
 import { ProgressBar } from "./progress-bar";
 import { errorMessageOf, postJson, sendForm } from "./send-form";
+import { formatBytes } from "@/lib/format";
 
 const statusLabel = { draft: "Draft", approved: "Approved", superseded: "Superseded" } as const;
 const rasterLabel = { none: "", pending: "Preparing for comparison…", ready: "Ready for comparison", failed: "Could not be prepared" } as const;
-const mb = (bytes: number) => `${(bytes / 1024 / 1024).toFixed(1)} MB`;
 
 export function ArtworkPanel({ view, refresh }: { view: JobPipelineView; refresh: () => void }) {
   const [progress, setProgress] = useState<number | null>(null);
@@ -70,7 +70,7 @@ export function ArtworkPanel({ view, refresh }: { view: JobPipelineView; refresh
             <li key={r.id} className="flex flex-wrap items-center gap-x-4 gap-y-1 py-2">
               <span className="font-medium">Revision {r.revision}</span>
               <span className="min-w-0 flex-1 truncate text-ink-muted" title={r.fileName}>
-                {r.fileName} · {mb(r.bytes)}
+                {r.fileName} · {formatBytes(r.bytes)}
                 {r.pageWidthMm && r.pageHeightMm ? ` · ${r.pageWidthMm} × ${r.pageHeightMm} mm` : ""}
               </span>
               <span className={r.status === "approved" ? "font-medium text-ok" : "text-ink-muted"}>{statusLabel[r.status]}</span>

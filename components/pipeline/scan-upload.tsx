@@ -6,6 +6,7 @@ import { sheetNumberFromName } from "@/lib/uploads/sheet-number";
 import type { JobPipelineView } from "@/lib/pipeline/view";
 import { ProgressBar } from "./progress-bar";
 import { errorMessageOf, sendForm } from "./send-form";
+import { formatBytes } from "@/lib/format";
 
 interface Pending {
   key: string;
@@ -95,7 +96,7 @@ export function ScanUpload({ view, refresh }: { view: JobPipelineView; refresh: 
               {files.map((p) => (
                 <li key={p.key} className="grid grid-cols-[1fr_auto] items-center gap-x-4 gap-y-1 py-2 sm:grid-cols-[minmax(0,2fr)_8rem_minmax(0,3fr)]">
                   <span className="truncate" title={p.file.name}>
-                    {p.file.name} <span className="text-ink-muted">· {(p.file.size / 1024 / 1024).toFixed(1)} MB</span>
+                    {p.file.name} <span className="text-ink-muted">· {formatBytes(p.file.size)}</span>
                   </span>
                   <label className="flex items-center gap-1">
                     <span className="text-ink-muted">Sheet</span>
