@@ -31,6 +31,9 @@ function cpuWorker<T>(queue: string, concurrency: number) {
 const isFinalFailure = (job: Job | undefined, error: Error) =>
   !!job && (error.name === "UnrecoverableError" || job.attemptsMade >= (job.opts.attempts ?? 1));
 
+/** How long a stopping worker may spend finishing its jobs: longer than one B1 sheet at 300 dpi takes. */
+const SHUTDOWN_GRACE_MS = 90_000;
+
 async function main() {
   await ensureBucket();
   const rasterise = cpuWorker<RasteriseData>(QUEUE.rasterise, 1);
@@ -78,12 +81,17 @@ async function main() {
 
   let stopping = false;
   const stop = async (signal: string) => {
+    // One signal often arrives twice (the terminal's Ctrl-C and the demo script's kill, relayed by tsx): repeats
+    // are ignored. close() waits for the jobs in progress and hangs while Redis is unreachable, so a grace
+    // period bounds it; the stalled-job check then hands the unfinished jobs to another worker.
     if (stopping) return;
     stopping = true;
-    log(`${signal}: finishing active jobs, then stopping`);
+    log(`${signal}: finishing active jobs, then stopping (at most ${SHUTDOWN_GRACE_MS / 1000} s)`);
     clearInterval(sweepTimer);
-    // close() waits for the jobs in progress; a second signal or the orchestrator's kill cuts it short,
-    // and the stalled-job check hands those jobs to another worker.
+    setTimeout(() => {
+      log("grace period over: stopping with jobs unfinished; they will be taken up again");
+      process.exit(1);
+    }, SHUTDOWN_GRACE_MS).unref();
     await Promise.all(workers.map((w) => w.close()));
     await closeQueues();
     closeMailTransport();
