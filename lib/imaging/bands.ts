@@ -102,13 +102,15 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
   const deltaE = new Float32Array(core.w * core.h);
   const kind = new Uint8Array(core.w * core.h);
   const score = new Float32Array(core.w * core.h);
+  const structural = new Uint8Array(core.w * core.h);
   for (let row = 0; row < core.h; row++) {
     const from = row * ext.w + (core.x - ext.x);
     deltaE.set(diff.deltaE.subarray(from, from + core.w), row * core.w);
     kind.set(diff.kind.subarray(from, from + core.w), row * core.w);
     score.set(diff.score.subarray(from, from + core.w), row * core.w);
+    structural.set(diff.structural.subarray(from, from + core.w), row * core.w);
   }
-  return { ...diff, deltaE, kind, score, rect: core };
+  return { ...diff, deltaE, kind, score, structural, rect: core };
 }
 
 /**

@@ -5,7 +5,8 @@
 // 2. CIELAB with a registration tolerance: a pixel counts only if its scan colour matches no artwork pixel
 //    within the tolerance radius AND its artwork colour matches no scan pixel within it. One direction alone
 //    misses a removed stroke thinner than the radius; both together forgive a sub-pixel shift along edges.
-// 3. An edge allowance in proportion to the artwork's local contrast (see EDGE_ALLOWANCE).
+// 3. An edge allowance in proportion to the artwork's local contrast (see EDGE_ALLOWANCE), and a smaller one
+//    for the structural check of small print (EDGE_ALLOWANCE_STRUCTURAL).
 // 4. ΔE00 (CIE 142-2001) is computed for the best-matching pair only, after a ΔE*ab bound: ΔE00 never
 //    exceeded 1.39 × ΔE*ab over 300 000 random sRGB pairs, so ΔE*ab < low / 1.4 cannot reach `low`.
 import pixelmatch from "pixelmatch";
@@ -30,6 +31,13 @@ const EDGE_ALLOWANCE = 0.15;
  * where the allowance is nil.
  */
 const EDGE_ALLOWANCE_COLOUR = 0.35;
+/**
+ * The edge allowance of the structural check: a changed glyph in small print adds ink where the artwork has
+ * none AND removes it where it has some, over several strokes, while a scan's softness along type only fills
+ * in or only thins. Pixels within this smaller allowance are counted apart (BandDifference.structural) and a
+ * region they form counts only when it holds both kinds (findings.ts).
+ */
+const EDGE_ALLOWANCE_STRUCTURAL = 0.08;
 /** Smallest YIQ distance per ΔE00² seen on 1 % of random sRGB pairs (measured; the worst case was 0.077). */
 const YIQ_PER_DE00_SQUARED = 0.2;
 const YIQ_MAX = 35215;
@@ -66,6 +74,8 @@ export interface BandDifference {
   /** ΔE00 less the edge allowance: what the two flagging levels test. */
   score: Float32Array;
   kind: Uint8Array;
+  /** PIXEL_EXTRA_INK or PIXEL_MISSING_INK where the pixel reaches the second level within the structural allowance. */
+  structural: Uint8Array;
   flagged: number;
   candidates: number;
 }
@@ -105,6 +115,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
   const deltaE = new Float32Array(n);
   const kind = new Uint8Array(n);
   const score = new Float32Array(n);
+  const structural = new Uint8Array(n);
   if (band.art.length !== width * rows * 4 || band.scan.length !== width * rows * 4 || band.inspect.length !== n) {
     throw new RangeError(`Band buffers do not match ${width} × ${rows} px with ${coreRows} core rows.`);
   }
@@ -125,7 +136,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       coreRows,
       { threshold, includeAA: true, diffMask: true },
     );
-    if (count === 0) return { deltaE, score, kind, flagged: 0, candidates: 0 };
+    if (count === 0) return { deltaE, score, kind, structural, flagged: 0, candidates: 0 };
   }
   const r = settings.radiusPx;
   // The edge allowance looks as far as an edge's blur reaches: a thin rule is lighter along its whole middle
@@ -136,6 +147,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
   const [la, ls] = scratch.lab(width * rows * 3);
   labAround(band, screen, reach, la, ls, scratch);
   const bound = (low / DE00_OVER_DEAB) ** 2;
+  const peak = settings.peakDeltaE00;
   const inspect = band.inspect;
   let flagged = 0;
   let candidates = 0;
@@ -171,26 +183,34 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       // first with the contrast of the registration square (a lower bound), then with the full reach.
       const worst = Math.sqrt(Math.max(best1 < bound ? 0 : best1, best2 < bound ? 0 : best2));
       const nearContrast = Math.sqrt((lMax - lMin) ** 2 + (aMax - aMin) ** 2 + (bMax - bMin) ** 2);
-      if (DE00_OVER_DEAB * worst < low + EDGE_ALLOWANCE * nearContrast && !settings.everyPixel) continue;
+      if (DE00_OVER_DEAB * worst < low + EDGE_ALLOWANCE_STRUCTURAL * nearContrast && !settings.everyPixel) continue;
       // Edge allowance: the artwork's own contrast around the pixel (extent of its Lab values).
+      let lSum = 0, lCount = 0;
       for (let k = 0; k < offX.length; k++) {
         const xx = x + offX[k], yy = y + offY[k];
         if (xx < 0 || yy < 0 || xx >= width || yy >= rows) continue;
         const q = (yy * width + xx) * 3;
         const l = la[q], a = la[q + 1], b = la[q + 2];
+        lSum += l;
+        lCount++;
         if (l < lMin) lMin = l; else if (l > lMax) lMax = l;
         if (a < aMin) aMin = a; else if (a > aMax) aMax = a;
         if (b < bMin) bMin = b; else if (b > bMax) bMax = b;
       }
       const contrast = Math.sqrt((lMax - lMin) ** 2 + (aMax - aMin) ** 2 + (bMax - bMin) ** 2);
-      if (DE00_OVER_DEAB * worst < low + EDGE_ALLOWANCE * contrast && !settings.everyPixel) continue;
+      if (DE00_OVER_DEAB * worst < low + EDGE_ALLOWANCE_STRUCTURAL * contrast && !settings.everyPixel) continue;
       const e1 = best1 < bound ? 0 : deltaE00(la[q1], la[q1 + 1], la[q1 + 2], sl, sa, sb);
       const e2 = best2 < bound ? 0 : deltaE00(al, aa, ab, ls[q2], ls[q2 + 1], ls[q2 + 2]);
       const e = e1 > e2 ? e1 : e2;
       if (e < low && !settings.everyPixel) continue;
       const k = classify(al, aa, ab, sl, sa, sb);
       const s = e - (k === PIXEL_COLOUR_SHIFT ? EDGE_ALLOWANCE_COLOUR : EDGE_ALLOWANCE) * contrast;
-      if (s < low && !settings.everyPixel) continue;
+      // Small print is dark type on a light ground (the ground's lightness dominates around it); in type
+      // reversed out of a dark solid the scan's softness fills strokes in, which looks much like a change.
+      const lightGround = lSum > lCount * 0.5 * (lMin + lMax);
+      const structuralInk = k !== PIXEL_COLOUR_SHIFT && lightGround && e - EDGE_ALLOWANCE_STRUCTURAL * contrast >= peak;
+      if (structuralInk) structural[i] = k;
+      if (s < low && !structuralInk && !settings.everyPixel) continue;
       deltaE[i] = e;
       score[i] = s > 0 ? s : 0;
       if (s >= low) {
@@ -199,7 +219,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       }
     }
   }
-  return { deltaE, score, kind, flagged, candidates };
+  return { deltaE, score, kind, structural, flagged, candidates };
 }
 
 /**

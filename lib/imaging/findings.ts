@@ -21,6 +21,8 @@ export interface Region {
   strongCount: number;
   /** ΔE-weighted votes for extra ink, missing ink, colour shift. */
   votes: [number, number, number];
+  /** Pixels reaching the second level within the structural allowance: extra ink, missing ink. */
+  structural: [number, number];
 }
 
 /** Labels flagged pixels band after band (rows in page order), 8-connected. */
@@ -33,6 +35,7 @@ export class RegionCollector {
   private runScore: number[] = [];
   private runStrong: number[] = [];
   private runVotes: number[] = [];
+  private runStructural: number[] = [];
   private parent: number[] = [];
   private prevStart = 0;
   private prevEnd = 0;
@@ -50,7 +53,7 @@ export class RegionCollector {
 
   /** Adds the core rows of one band; `pageY` is the page row of its first core row, `pageX` its first column. */
   addBand(diff: BandDifference, rows: number, pageY: number, pageX = 0, bandWidth = this.width): void {
-    const { deltaE, kind, score } = diff;
+    const { deltaE, kind, score, structural } = diff;
     for (let row = 0; row < rows; row++) {
       const y = pageY + row;
       if (y !== this.lastRow + 1) this.prevStart = this.prevEnd = this.runY.length;
@@ -60,7 +63,7 @@ export class RegionCollector {
       while (x < bandWidth) {
         if (deltaE[base + x] === 0) { x++; continue; }
         const start = x;
-        let sum = 0, max = 0, top = 0, strong = 0, v1 = 0, v2 = 0, v3 = 0;
+        let sum = 0, max = 0, top = 0, strong = 0, v1 = 0, v2 = 0, v3 = 0, s1 = 0, s2 = 0;
         while (x < bandWidth && deltaE[base + x] !== 0) {
           const e = deltaE[base + x];
           const sc = score[base + x];
@@ -68,6 +71,9 @@ export class RegionCollector {
           if (sc >= this.peakLevel) strong++;
           sum += e;
           if (e > max) max = e;
+          const st = structural[base + x];
+          if (st === PIXEL_EXTRA_INK) s1++;
+          else if (st === PIXEL_MISSING_INK) s2++;
           const k = kind[base + x];
           if (k === PIXEL_EXTRA_INK) v1 += e;
           else if (k === PIXEL_MISSING_INK) v2 += e;
@@ -76,7 +82,7 @@ export class RegionCollector {
         }
         const id = this.runY.length;
         this.runX0.push(pageX + start); this.runX1.push(pageX + x); this.runY.push(y);
-        this.runSum.push(sum); this.runMax.push(max); this.runScore.push(top); this.runStrong.push(strong); this.runVotes.push(v1, v2, v3);
+        this.runSum.push(sum); this.runMax.push(max); this.runScore.push(top); this.runStrong.push(strong); this.runVotes.push(v1, v2, v3); this.runStructural.push(s1, s2);
         this.parent.push(id);
       }
       this.joinRows(this.prevStart, this.prevEnd, rowStart, this.runY.length);
@@ -114,7 +120,7 @@ export class RegionCollector {
       const root = this.find(i);
       let r = byRoot.get(root);
       if (!r) {
-        r = { x0: Infinity, y0: Infinity, x1: -Infinity, y1: -Infinity, count: 0, sumDeltaE: 0, maxDeltaE: 0, maxScore: 0, strongCount: 0, votes: [0, 0, 0] };
+        r = { x0: Infinity, y0: Infinity, x1: -Infinity, y1: -Infinity, count: 0, sumDeltaE: 0, maxDeltaE: 0, maxScore: 0, strongCount: 0, votes: [0, 0, 0], structural: [0, 0] };
         byRoot.set(root, r);
       }
       r.x0 = Math.min(r.x0, this.runX0[i]); r.x1 = Math.max(r.x1, this.runX1[i]);
@@ -125,6 +131,8 @@ export class RegionCollector {
       r.maxScore = Math.max(r.maxScore, this.runScore[i]);
       r.strongCount += this.runStrong[i];
       for (let k = 0; k < 3; k++) r.votes[k] += this.runVotes[i * 3 + k];
+      r.structural[0] += this.runStructural[i * 2];
+      r.structural[1] += this.runStructural[i * 2 + 1];
     }
     return [...byRoot.values()];
   }
@@ -136,6 +144,8 @@ export class RegionCollector {
  * blocking, while a speck of ink (extra or missing) keeps the profile's smaller minimum.
  */
 const MIN_COLOUR_SHIFT_MM2 = 1;
+/** Structural pixels (both kinds together) a changed glyph needs, in units of minStrongPx. */
+const STRUCTURAL_SHARE = 2;
 
 export interface FindingRules {
   dpi: number;
@@ -151,8 +161,15 @@ export interface FindingRules {
 
 /** Regions → findings (without crops), largest first. */
 export function regionsToFindings(regions: Region[], rules: FindingRules): { findings: Finding[]; kept: Region[] } {
+  const gapPx = (rules.mergeMm * rules.dpi) / 25.4;
   const strong = regions.filter((r) => r.strongCount >= rules.minStrongPx);
-  const merged = mergeNearby(strong, (rules.mergeMm * rules.dpi) / 25.4);
+  // A changed glyph: the added and the removed strokes are separate small blobs, each often below the minimum
+  // area. Taken together they count when they reach the second level like any region and hold pixels of
+  // both extra and missing ink within the structural allowance (a scan's softness only fills in or thins).
+  const structuralPx = STRUCTURAL_SHARE * rules.minStrongPx;
+  const glyphs = mergeNearby(regions.filter((r) => r.structural[0] + r.structural[1] > 0), gapPx)
+    .filter((r) => r.strongCount >= rules.minStrongPx && r.structural[0] >= 1 && r.structural[1] >= 1 && r.structural[0] + r.structural[1] >= structuralPx);
+  const merged = mergeNearby([...strong, ...glyphs], gapPx);
   const pxArea = (25.4 / rules.dpi) ** 2;
   const kept = merged
     .filter((r) => r.count * pxArea >= (kindOf(r.votes) === "colour_shift" ? Math.max(rules.minAreaMm2, MIN_COLOUR_SHIFT_MM2) : rules.minAreaMm2))
@@ -187,7 +204,7 @@ function kindOf(votes: [number, number, number]): FindingKind {
 
 /** Merges regions whose boxes come within `gapPx` of each other, until none do. */
 function mergeNearby(regions: Region[], gapPx: number): Region[] {
-  const out = regions.map((r) => ({ ...r, votes: [...r.votes] as [number, number, number] }));
+  const out = regions.map((r) => ({ ...r, votes: [...r.votes] as [number, number, number], structural: [...r.structural] as [number, number] }));
   let changed = true;
   while (changed) {
     changed = false;
@@ -199,6 +216,8 @@ function mergeNearby(regions: Region[], gapPx: number): Region[] {
         a.x1 = Math.max(a.x1, b.x1); a.y1 = Math.max(a.y1, b.y1);
         a.count += b.count; a.sumDeltaE += b.sumDeltaE; a.maxDeltaE = Math.max(a.maxDeltaE, b.maxDeltaE); a.maxScore = Math.max(a.maxScore, b.maxScore); a.strongCount += b.strongCount;
         for (let k = 0; k < 3; k++) a.votes[k] += b.votes[k];
+        a.structural[0] += b.structural[0];
+        a.structural[1] += b.structural[1];
         out.splice(j, 1);
         j--;
         changed = true;

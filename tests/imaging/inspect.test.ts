@@ -72,6 +72,28 @@ describe("inspectSheet on simulated sheets", () => {
     expect(result.findings.filter((f) => !overlaps(f, box))).toEqual([]);
   });
 
+  it("finds a one-digit change (250 → 350 ml) in 6 pt text on a 297 × 210 mm sheet of six ups at 300 dpi", { timeout: 60_000 }, async () => {
+    const carton = { widthMm: 297, heightMm: 210, rows: 2, columns: 3 };
+    const [approved, changed] = await Promise.all([
+      makeCartonPdf(carton),
+      makeCartonPdf({ ...carton, changedWord: { up: 6, replacement: "350" } }),
+    ]);
+    expect(changed.layout.changedWord).toMatchObject({ from: "250", to: "350" });
+    const [art300, printed] = await Promise.all([rasterisePage(approved.pdf, { dpi: 300 }), rasterisePage(changed.pdf, { dpi: 300 })]);
+    const box = changed.layout.changedWordMm!;
+    // A lighter scan than the other tests': no halftone, the blur and noise of a good flatbed.
+    const photometric: SimulateOptions["photometric"] = {
+      press: { density: 1.03, paperWhite: [246, 245, 240], cast: [1, 1, 0.99], crossTalk: 0.02 },
+      scanner: { gamma: 1.02, blurMm: 0.04, noise: 1.5, jpegQuality: 92 },
+    };
+    for (const [seed, rotationDeg] of [[21, 0.4], [22, -0.3]] as const) {
+      const sim = await simulateSheet(art300, { printed, photometric, geometry: { rotationDeg, scale: 1.0005, marginMm: 8 }, seed });
+      const result = await inspectSheet({ artwork: art300, scan: sim.scan, profile: getProfile("standard-food") });
+      expect(result.findings.some((f) => overlaps(f, box)), `seed ${seed}`).toBe(true);
+      expect(result.findings.filter((f) => !overlaps(f, box)), `seed ${seed}`).toEqual([]);
+    }
+  });
+
   it.each([1, 2, 3])("reports no findings on a clean sheet (seed %i: turned, scaled, noisy, tone drift, JPEG)", async (seed) => {
     const { result } = await inspect({
       seed,
