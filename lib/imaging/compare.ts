@@ -38,6 +38,8 @@ const EDGE_ALLOWANCE_COLOUR = 0.35;
  * region they form counts only when it holds both kinds (findings.ts).
  */
 const EDGE_ALLOWANCE_STRUCTURAL = 0.08;
+/** ΔE*ab of the artwork's local contrast from which a pixel lies near type (a flat ground keeps the minimum area). */
+const STRUCTURAL_MIN_CONTRAST = 20;
 /** Smallest YIQ distance per ΔE00² seen on 1 % of random sRGB pairs (measured; the worst case was 0.077). */
 const YIQ_PER_DE00_SQUARED = 0.2;
 const YIQ_MAX = 35215;
@@ -208,7 +210,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       // Small print is dark type on a light ground (the ground's lightness dominates around it); in type
       // reversed out of a dark solid the scan's softness fills strokes in, which looks much like a change.
       const lightGround = lSum > lCount * 0.5 * (lMin + lMax);
-      const structuralInk = k !== PIXEL_COLOUR_SHIFT && lightGround && e - EDGE_ALLOWANCE_STRUCTURAL * contrast >= peak;
+      const structuralInk = k !== PIXEL_COLOUR_SHIFT && lightGround && contrast >= STRUCTURAL_MIN_CONTRAST && e - EDGE_ALLOWANCE_STRUCTURAL * contrast >= peak;
       if (structuralInk) structural[i] = k;
       if (s < low && !structuralInk && !settings.everyPixel) continue;
       deltaE[i] = e;

@@ -164,11 +164,12 @@ export function regionsToFindings(regions: Region[], rules: FindingRules): { fin
   const gapPx = (rules.mergeMm * rules.dpi) / 25.4;
   const strong = regions.filter((r) => r.strongCount >= rules.minStrongPx);
   // A changed glyph: the added and the removed strokes are separate small blobs, each often below the minimum
-  // area. Taken together they count when they reach the second level like any region and hold pixels of
-  // both extra and missing ink within the structural allowance (a scan's softness only fills in or thins).
+  // area. Taken together they count when they reach the second level like any region and hold enough pixels
+  // within the structural allowance, of both extra and missing ink (a scan's softness only fills in or thins)
+  // unless the second level alone is reached over as many pixels.
   const structuralPx = STRUCTURAL_SHARE * rules.minStrongPx;
   const glyphs = mergeNearby(regions.filter((r) => r.structural[0] + r.structural[1] > 0), gapPx)
-    .filter((r) => r.strongCount >= rules.minStrongPx && r.structural[0] >= 1 && r.structural[1] >= 1 && r.structural[0] + r.structural[1] >= structuralPx);
+    .filter((r) => r.strongCount >= rules.minStrongPx && r.structural[0] + r.structural[1] >= structuralPx && ((r.structural[0] >= 1 && r.structural[1] >= 1) || r.strongCount >= structuralPx));
   const merged = mergeNearby([...strong, ...glyphs], gapPx);
   const pxArea = (25.4 / rules.dpi) ** 2;
   const kept = merged
