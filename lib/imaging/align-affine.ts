@@ -1,10 +1,7 @@
 // 2-D affine maps as [a, b, c, d, e, f]: x' = a·x + b·y + c, y' = d·x + e·y + f (the layout of
 // Alignment.artworkToScan and of OpenCV's 2 × 3 matrices). Pixel centres sit at integer coordinates.
-import type { RectMm } from "./types";
 
 export type Affine = [number, number, number, number, number, number];
-
-export const IDENTITY: Affine = [1, 0, 0, 0, 1, 0];
 
 /** p ↦ m(n(p)). */
 export function compose(m: Affine, n: Affine): Affine {
@@ -128,9 +125,4 @@ export function coveredRect(artworkToScan: Affine, w: number, h: number, sw: num
   const xs = poly.map((p) => p[0]), ys = poly.map((p) => p[1]);
   const x0 = Math.min(...xs), y0 = Math.min(...ys);
   return { x: x0 + 0.5, y: y0 + 0.5, w: Math.max(...xs) - x0, h: Math.max(...ys) - y0 };
-}
-
-export function pxRectToMm(r: { x: number; y: number; w: number; h: number }, dpi: number): RectMm {
-  const f = 25.4 / dpi;
-  return { x: r.x * f, y: r.y * f, w: r.w * f, h: r.h * f };
 }

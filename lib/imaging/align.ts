@@ -14,12 +14,13 @@
 //
 // The scan's resolution may differ from the artwork's: it enters as the nominal scale, and the fitted scale
 // is reported relative to it (1 = the sheet is scanned at its true size).
-import { coveredRect, compose, invert, pxRectToMm, scaling, translate, type Affine } from "./align-affine";
+import { coveredRect, compose, invert, scaling, translate, type Affine } from "./align-affine";
 import { coarsePlacement } from "./align-coarse";
 import { localField } from "./align-field";
 import { refineOnPatches } from "./align-patches";
 import { loadOpenCv, openCvMessage, withMats, type OpenCv } from "./opencv";
 import { greyLevel, halve, levelToFull, type GreyLevel } from "./pyramid";
+import { pxRectToMm, pxToMm } from "./raster";
 import { ImagingError, type Alignment, type ArtworkRaster, type DisplacementField, type RgbaImage, type ScanImage } from "./types";
 
 export { warpScanToArtwork } from "./align-warp";
@@ -70,7 +71,7 @@ export async function alignScan(artwork: ArtworkRaster, scan: ScanImage, opts: A
   };
 
   // Level sizes follow the smaller of page and scan, so a scan of a corner of a large sheet keeps detail.
-  const areaMm2 = Math.min(mm(artwork.width, artwork.dpi) * mm(artwork.height, artwork.dpi), mm(scan.width, scan.dpi) * mm(scan.height, scan.dpi));
+  const areaMm2 = Math.min(pxToMm(artwork.width, artwork.dpi) * pxToMm(artwork.height, artwork.dpi), pxToMm(scan.width, scan.dpi) * pxToMm(scan.height, scan.dpi));
   const coarseMm = Math.min(8, Math.max(0.4, Math.sqrt(areaMm2 / COARSE_PIXELS)));
 
   // One pass over each full image gives the ECC level; the coarse level is its 2 × 2 reduction.
@@ -124,10 +125,10 @@ function describe(artwork: ArtworkRaster, scan: ScanImage, map: Affine, rho: num
   const alignment: Alignment = {
     rotationDeg: round((Math.atan2(map[3], map[0]) * 180) / Math.PI, 1e4),
     scale: round(Math.sqrt(Math.abs(det)) / nominal, 1e6),
-    txMm: round(mm(cx, scan.dpi), 1e4),
-    tyMm: round(mm(cy, scan.dpi), 1e4),
+    txMm: round(pxToMm(cx, scan.dpi), 1e4),
+    tyMm: round(pxToMm(cy, scan.dpi), 1e4),
     residualPx: round(residualPx, 1e3),
-    residualMm: round(mm(residualPx, artwork.dpi), 1e4),
+    residualMm: round(pxToMm(residualPx, artwork.dpi), 1e4),
     correlation: round(rho, 1e4),
     artworkToScan: map,
     coveredMm: pxRectToMm(covered, artwork.dpi),
@@ -201,5 +202,4 @@ function std(a: Float32Array): number {
   return Math.sqrt(Math.max(0, s2 / a.length - m * m));
 }
 
-const mm = (px: number, dpi: number) => (px * 25.4) / dpi;
 const round = (v: number, f: number) => Math.round(v * f) / f;

@@ -7,7 +7,7 @@ import { makeCrops } from "./crops";
 import { RegionCollector, regionsToFindings } from "./findings";
 import { fitNormalisation, lowPassSigmaPx } from "./normalise";
 import { validateProfile } from "./profiles";
-import { mmToPx, rectMmToPx, rectMmToPxInside } from "./raster";
+import { mmToPx, pxRectToMm, rectMmToPx, rectMmToPxInside } from "./raster";
 import {
   ImagingError,
   type Alignment,
@@ -134,7 +134,7 @@ export function identityAlignment(artwork: ArtworkRaster, scan: RgbaImage): Alig
     residualMm: 0,
     correlation: 1,
     artworkToScan: [1, 0, 0, 0, 1, 0],
-    coveredMm: { x: 0, y: 0, w: (w * 25.4) / artwork.dpi, h: (h * 25.4) / artwork.dpi },
+    coveredMm: pxRectToMm({ x: 0, y: 0, w, h }, artwork.dpi),
   };
 }
 

@@ -12,14 +12,17 @@ export interface PxRect {
 /** [a, b, c, d, e, f]: xs = a·x + b·y + c, ys = d·x + e·y + f. */
 export type AffineMap = readonly [number, number, number, number, number, number];
 
-export const IDENTITY: AffineMap = [1, 0, 0, 0, 1, 0];
-
 export function mmToPx(mm: number, dpi: number): number {
   return (mm * dpi) / 25.4;
 }
 
 export function pxToMm(px: number, dpi: number): number {
   return (px * 25.4) / dpi;
+}
+
+/** A pixel rectangle (fractional allowed) in mm. */
+export function pxRectToMm(r: PxRect, dpi: number): RectMm {
+  return { x: pxToMm(r.x, dpi), y: pxToMm(r.y, dpi), w: pxToMm(r.w, dpi), h: pxToMm(r.h, dpi) };
 }
 
 /** Whole pixels covered by a mm rectangle (rounded outwards), clipped to the image. */

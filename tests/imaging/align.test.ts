@@ -4,7 +4,8 @@
 // The artwork is the invented multi-up carton sheet of tests/support/carton.ts, rasterised at 100 dpi.
 import { beforeAll, describe, expect, it } from "vitest";
 import { alignScan, warpScanToArtwork } from "@/lib/imaging/align";
-import { apply, coveredRect, pxRectToMm } from "@/lib/imaging/align-affine";
+import { apply, coveredRect } from "@/lib/imaging/align-affine";
+import { pxRectToMm } from "@/lib/imaging/raster";
 import { loadOpenCv } from "@/lib/imaging/opencv";
 import { rasterisePage } from "@/lib/imaging/rasterise";
 import { ImagingError, type Alignment, type ArtworkRaster, type RectMm, type ScanImage } from "@/lib/imaging/types";

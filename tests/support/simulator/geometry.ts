@@ -6,7 +6,7 @@
 // convolution interpolation for digital image processing", IEEE Trans. ASSP 29(6), 1981, a = −0.5; cited
 // from memory).
 // Pixel centres sit at integer coordinates; the page spans −0.5 … width − 0.5.
-import type { Affine } from "@/lib/imaging/align-affine";
+import { invert, type Affine } from "@/lib/imaging/align-affine";
 import type { ArtworkRaster, ScanImage } from "@/lib/imaging/types";
 
 export interface GlassOptions {
@@ -63,10 +63,7 @@ export function placeOnGlass(artwork: ArtworkRaster, o: GlassOptions = {}): Glas
     (sn * ox + c * oy + centre.y) * fs - 0.5,
   ];
   const width = Math.round(size.w * fs), height = Math.round(size.h * fs);
-  const det = m[0] * m[4] - m[1] * m[3];
-  const inv: Affine = [m[4] / det, -m[1] / det, 0, -m[3] / det, m[0] / det, 0];
-  inv[2] = -(inv[0] * m[2] + inv[1] * m[5]);
-  inv[5] = -(inv[3] * m[2] + inv[4] * m[5]);
+  const inv = invert(m);
 
   const distort = o.distortMm;
   const shift = (x: number, y: number): [number, number] => {
