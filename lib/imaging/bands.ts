@@ -4,7 +4,8 @@
 import { warpScanToArtwork } from "./align";
 import { compareBand, CompareScratch, type BandDifference } from "./compare";
 import { applyColourModel, lowPass, type ColourModel } from "./normalise";
-import { cropRgba, intersect, type PxRect } from "./raster";
+import { preparedRect, type ContrastWindows } from "./prepared";
+import { intersect, type PxRect } from "./raster";
 import type { Alignment, RgbaImage } from "./types";
 
 /** RGBA (alpha 255) of a rectangle of the scan seen in the artwork's pixel grid, and 1 where the scan covers it. */
@@ -24,6 +25,8 @@ export interface SheetContext {
   model: ColourModel;
   sigmaPx: number;
   radiusPx: number;
+  /** Windows of the artwork's local contrast (prepared.ts). */
+  windows: ContrastWindows;
   lowDeltaE00: number;
   peakDeltaE00: number;
   /** Inspected part of the page (covered by the scan), px. */
@@ -32,29 +35,6 @@ export interface SheetContext {
   excludedPx: PxRect[];
   scratch: CompareScratch;
   timings: { normalise: number; compare: number };
-}
-
-/**
- * Low-passed artwork bands, kept per artwork pixel buffer: every sheet of a job is compared with the same
- * artwork, and its low-pass is a third of the per-sheet work. Only artworks up to CACHE_MAX_PIXELS are kept
- * (the copy is as large as the artwork), full-width bands only; entries go when the artwork is collected. Per
- * thread, never shared.
- */
-const artworkCache = new WeakMap<ArrayBufferLike, Map<string, Uint8Array>>();
-const CACHE_MAX_PIXELS = 40_000_000;
-
-function cachedArtworkLowPass(art: RgbaImage, ext: PxRect, sigmaPx: number, make: () => Promise<Uint8Array>): Promise<Uint8Array> {
-  if (art.width * art.height > CACHE_MAX_PIXELS || ext.w !== art.width) return make();
-  const buffer = art.data.buffer;
-  let bands = artworkCache.get(buffer);
-  if (!bands) artworkCache.set(buffer, (bands = new Map()));
-  const key = `${art.data.byteOffset}:${art.width}x${art.height}:${ext.x},${ext.y},${ext.w},${ext.h}:${sigmaPx}`;
-  const hit = bands.get(key);
-  if (hit) return Promise.resolve(hit);
-  return make().then((low) => {
-    bands!.set(key, low);
-    return low;
-  });
 }
 
 export interface RectDifference extends BandDifference {
@@ -74,13 +54,9 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
     { x: core.x - halo, y: core.y - halo, w: core.w + 2 * halo, h: core.h + 2 * halo },
     { x: 0, y: 0, w: art.width, h: art.height },
   );
-  // Columns outside the core are only needed for the low-pass; bands span the width so ext.x === core.x there.
-  const artPatch = ext.x === 0 && ext.w === art.width
-    ? new Uint8Array(art.data.buffer, art.data.byteOffset + ext.y * art.width * 4, ext.w * ext.h * 4)
-    : cropRgba(art.data, art.width, ext);
   const scanPatch = ctx.source(ext);
-  const [artLow, scanLow] = await Promise.all([
-    cachedArtworkLowPass(art, ext, ctx.sigmaPx, () => lowPass(artPatch, ext.w, ext.h, ctx.sigmaPx)),
+  const [artPrepared, scanLow] = await Promise.all([
+    preparedRect(art, ext, ctx.windows),
     lowPass(scanPatch.rgba, ext.w, ext.h, ctx.sigmaPx),
   ]);
   applyColourModel(ctx.model, scanLow);
@@ -93,8 +69,8 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
   const wideInspect = new Uint8Array(ext.w * core.h);
   for (let row = 0; row < core.h; row++) wideInspect.set(inspect.subarray(row * core.w, (row + 1) * core.w), row * ext.w + (core.x - ext.x));
   const diff = compareBand(
-    { width: ext.w, rows: ext.h, art: artLow, scan: scanLow, coreY, coreRows: core.h, inspect: wideInspect },
-    { lowDeltaE00: ctx.lowDeltaE00, peakDeltaE00: ctx.peakDeltaE00, radiusPx: ctx.radiusPx, blurReachPx: Math.ceil(2 * ctx.sigmaPx), everyPixel },
+    { width: ext.w, rows: ext.h, art: artPrepared, scan: scanLow, coreY, coreRows: core.h, inspect: wideInspect },
+    { lowDeltaE00: ctx.lowDeltaE00, peakDeltaE00: ctx.peakDeltaE00, radiusPx: ctx.radiusPx, everyPixel },
     ctx.scratch,
   );
   ctx.timings.compare += performance.now() - mid;

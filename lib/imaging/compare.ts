@@ -11,6 +11,7 @@
 //    exceeded 1.39 × ΔE*ab over 300 000 random sRGB pairs, so ΔE*ab < low / 1.4 cannot reach `low`.
 import pixelmatch from "pixelmatch";
 import { D65_WHITE, deltaE00, labFFast, SRGB8_TO_LINEAR, SRGB_TO_XYZ } from "./colour";
+import type { PreparedRect } from "./prepared";
 
 /** Class of a flagged pixel, by whether the scan lies farther from paper white than the artwork. */
 export const PIXEL_EXTRA_INK = 1;
@@ -51,17 +52,17 @@ export interface CompareSettings {
   peakDeltaE00: number;
   /** Registration tolerance in whole pixels (square neighbourhood). */
   radiusPx: number;
-  /** How far beyond the registration radius the edge allowance looks (about 2σ of the low-pass), px. */
-  blurReachPx: number;
   /** Compute the tolerant ΔE00 of every pixel (difference crops) instead of screening. */
   everyPixel?: boolean;
 }
 
-/** One band: low-passed RGBA of both images over the same rows (core plus halo), full band width. */
+/** One band over the same rows of both images (core plus halo), full band width. */
 export interface BandPair {
   width: number;
   rows: number;
-  art: Uint8Array;
+  /** The prepared artwork over the band (prepared.ts): low-pass, CIELAB, local contrast. */
+  art: PreparedRect;
+  /** Low-passed, normalised scan, RGBA. */
   scan: Uint8Array;
   /** First core row inside the band and number of core rows (the halo lies around them). */
   coreY: number;
@@ -85,7 +86,6 @@ export interface BandDifference {
 /** Reusable buffers of one comparison (one per sheet; never shared between threads). */
 export class CompareScratch {
   private screen = new Uint8Array(0);
-  private labArt = new Float32Array(0);
   private labScan = new Float32Array(0);
   screenBuffer(n: number): Uint8Array {
     if (this.screen.length < n) this.screen = new Uint8Array(n);
@@ -102,23 +102,20 @@ export class CompareScratch {
     out.fill(0);
     return [out, this.rowMask.subarray(0, width)];
   }
-  lab(n: number): [Float32Array, Float32Array] {
-    if (this.labArt.length < n) {
-      this.labArt = new Float32Array(n);
-      this.labScan = new Float32Array(n);
-    }
-    return [this.labArt.subarray(0, n), this.labScan.subarray(0, n)];
+  lab(n: number): Float32Array {
+    if (this.labScan.length < n) this.labScan = new Float32Array(n);
+    return this.labScan.subarray(0, n);
   }
 }
 
 export function compareBand(band: BandPair, settings: CompareSettings, scratch: CompareScratch): BandDifference {
-  const { width, rows, coreY, coreRows } = band;
+  const { width, rows, coreY, coreRows, art } = band;
   const n = width * coreRows;
   const deltaE = new Float32Array(n);
   const kind = new Uint8Array(n);
   const score = new Float32Array(n);
   const structural = new Uint8Array(n);
-  if (band.art.length !== width * rows * 4 || band.scan.length !== width * rows * 4 || band.inspect.length !== n) {
+  if (art.low.length !== width * rows * 4 || band.scan.length !== width * rows * 4 || band.inspect.length !== n) {
     throw new RangeError(`Band buffers do not match ${width} × ${rows} px with ${coreRows} core rows.`);
   }
   const low = settings.lowDeltaE00;
@@ -131,7 +128,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
     const peak = settings.peakDeltaE00;
     const threshold = Math.sqrt((YIQ_PER_DE00_SQUARED * peak * peak) / YIQ_MAX);
     const count = pixelmatch(
-      band.art.subarray(coreStart, coreStart + n * 4),
+      art.low.subarray(coreStart, coreStart + n * 4),
       band.scan.subarray(coreStart, coreStart + n * 4),
       screen,
       width,
@@ -141,13 +138,9 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
     if (count === 0) return { deltaE, score, kind, structural, flagged: 0, candidates: 0 };
   }
   const r = settings.radiusPx;
-  // The edge allowance looks as far as an edge's blur reaches: a thin rule is lighter along its whole middle
-  // when the scan is softer, although its middle has no contrast within the registration radius.
-  const reach = r + settings.blurReachPx;
-  const offX: number[] = [], offY: number[] = [];
-  for (let dy = -reach; dy <= reach; dy++) for (let dx = -reach; dx <= reach; dx++) { offX.push(dx); offY.push(dy); }
-  const [la, ls] = scratch.lab(width * rows * 3);
-  labAround(band, screen, reach, la, ls, scratch);
+  const ls = scratch.lab(width * rows * 3);
+  scanLabAround(band, screen, r, ls, scratch);
+  const la = art.lab, contrastOf = art.contrast;
   const bound = (low / DE00_OVER_DEAB) ** 2;
   const peak = settings.peakDeltaE00;
   const inspect = band.inspect;
@@ -160,47 +153,29 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       const i = cy * width + x;
       if (inspect[i] === 0 || (screen !== null && screen[i * 4 + 3] === 0)) continue;
       candidates++;
-      const p = (y * width + x) * 3;
+      const pix = y * width + x, p = pix * 3;
       const sl = ls[p], sa = ls[p + 1], sb = ls[p + 2];
       const al = la[p], aa = la[p + 1], ab = la[p + 2];
       const direct = (sl - al) ** 2 + (sa - aa) ** 2 + (sb - ab) ** 2;
       if (direct < bound && !settings.everyPixel) continue;
+      // ΔE00 is at most 1.4 × ΔE*ab, and the best match is no farther than the pixel itself: where even the
+      // direct difference cannot clear the smallest edge allowance, no search can flag the pixel.
+      const contrast = contrastOf[pix];
+      const floor = low + EDGE_ALLOWANCE_STRUCTURAL * contrast;
+      if (DE00_OVER_DEAB * DE00_OVER_DEAB * direct < floor * floor && !settings.everyPixel) continue;
       const x0 = Math.max(0, x - r), x1 = Math.min(width - 1, x + r);
       // Scan pixel against artwork neighbours, and artwork pixel against scan neighbours.
       let best1 = direct, q1 = p, best2 = direct, q2 = p;
-      let lMin = al, lMax = al, aMin = aa, aMax = aa, bMin = ab, bMax = ab;
       for (let yy = y0; yy <= y1 && (best1 >= bound || best2 >= bound); yy++) {
         for (let xx = x0, q = (yy * width + x0) * 3; xx <= x1; xx++, q += 3) {
-          const l = la[q], a = la[q + 1], b = la[q + 2];
-          const d1 = (sl - l) ** 2 + (sa - a) ** 2 + (sb - b) ** 2;
+          const d1 = (sl - la[q]) ** 2 + (sa - la[q + 1]) ** 2 + (sb - la[q + 2]) ** 2;
           if (d1 < best1) { best1 = d1; q1 = q; }
           const d2 = (al - ls[q]) ** 2 + (aa - ls[q + 1]) ** 2 + (ab - ls[q + 2]) ** 2;
           if (d2 < best2) { best2 = d2; q2 = q; }
-          if (l < lMin) lMin = l; else if (l > lMax) lMax = l;
-          if (a < aMin) aMin = a; else if (a > aMax) aMax = a;
-          if (b < bMin) bMin = b; else if (b > bMax) bMax = b;
         }
       }
-      // ΔE00 is at most 1.4 × ΔE*ab: skip the costly ΔE00 where even that cannot clear the edge allowance,
-      // first with the contrast of the registration square (a lower bound), then with the full reach.
       const worst = Math.sqrt(Math.max(best1 < bound ? 0 : best1, best2 < bound ? 0 : best2));
-      const nearContrast = Math.sqrt((lMax - lMin) ** 2 + (aMax - aMin) ** 2 + (bMax - bMin) ** 2);
-      if (DE00_OVER_DEAB * worst < low + EDGE_ALLOWANCE_STRUCTURAL * nearContrast && !settings.everyPixel) continue;
-      // Edge allowance: the artwork's own contrast around the pixel (extent of its Lab values).
-      let lSum = 0, lCount = 0;
-      for (let k = 0; k < offX.length; k++) {
-        const xx = x + offX[k], yy = y + offY[k];
-        if (xx < 0 || yy < 0 || xx >= width || yy >= rows) continue;
-        const q = (yy * width + xx) * 3;
-        const l = la[q], a = la[q + 1], b = la[q + 2];
-        lSum += l;
-        lCount++;
-        if (l < lMin) lMin = l; else if (l > lMax) lMax = l;
-        if (a < aMin) aMin = a; else if (a > aMax) aMax = a;
-        if (b < bMin) bMin = b; else if (b > bMax) bMax = b;
-      }
-      const contrast = Math.sqrt((lMax - lMin) ** 2 + (aMax - aMin) ** 2 + (bMax - bMin) ** 2);
-      if (DE00_OVER_DEAB * worst < low + EDGE_ALLOWANCE_STRUCTURAL * contrast && !settings.everyPixel) continue;
+      if (DE00_OVER_DEAB * worst < floor && !settings.everyPixel) continue;
       const e1 = best1 < bound ? 0 : deltaE00(la[q1], la[q1 + 1], la[q1 + 2], sl, sa, sb);
       const e2 = best2 < bound ? 0 : deltaE00(al, aa, ab, ls[q2], ls[q2 + 1], ls[q2 + 2]);
       const e = e1 > e2 ? e1 : e2;
@@ -209,8 +184,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       const s = e - (k === PIXEL_COLOUR_SHIFT ? EDGE_ALLOWANCE_COLOUR : EDGE_ALLOWANCE) * contrast;
       // Small print is dark type on a light ground (the ground's lightness dominates around it); in type
       // reversed out of a dark solid the scan's softness fills strokes in, which looks much like a change.
-      const lightGround = lSum > lCount * 0.5 * (lMin + lMax);
-      const structuralInk = k !== PIXEL_COLOUR_SHIFT && lightGround && contrast >= STRUCTURAL_MIN_CONTRAST && e - EDGE_ALLOWANCE_STRUCTURAL * contrast >= peak;
+      const structuralInk = k !== PIXEL_COLOUR_SHIFT && art.lightGround[pix] === 1 && contrast >= STRUCTURAL_MIN_CONTRAST && e - EDGE_ALLOWANCE_STRUCTURAL * contrast >= peak;
       if (structuralInk) structural[i] = k;
       if (s < low && !structuralInk && !settings.everyPixel) continue;
       deltaE[i] = e;
@@ -260,10 +234,10 @@ function labOf(rgba: Uint8Array, i: number, out: Float32Array): void {
 }
 
 /**
- * CIELAB of both images, but only within `reach` of a pixel the screen passed: on a clean sheet that is a
- * small part of the band, and the conversion is the costliest per-pixel step after the screen itself.
+ * CIELAB of the scan, but only within the registration radius of a pixel the screen passed: on a clean sheet
+ * that is a small part of the band (the artwork's CIELAB is prepared once).
  */
-function labAround(band: BandPair, screen: Uint8Array | null, reach: number, la: Float32Array, ls: Float32Array, scratch: CompareScratch): void {
+function scanLabAround(band: BandPair, screen: Uint8Array | null, reach: number, ls: Float32Array, scratch: CompareScratch): void {
   const { width, rows, coreY, coreRows, inspect } = band;
   const [need, dilated] = scratch.need(width * rows, width);
   if (screen === null) need.fill(1);
@@ -290,9 +264,5 @@ function labAround(band: BandPair, screen: Uint8Array | null, reach: number, la:
       }
     }
   }
-  for (let i = 0; i < width * rows; i++) {
-    if (need[i] === 0) continue;
-    labOf(band.art, i, la);
-    labOf(band.scan, i, ls);
-  }
+  for (let i = 0; i < width * rows; i++) if (need[i] !== 0) labOf(band.scan, i, ls);
 }

@@ -6,6 +6,7 @@ import { CompareScratch } from "./compare";
 import { makeCrops } from "./crops";
 import { RegionCollector, regionsToFindings } from "./findings";
 import { fitNormalisation, lowPassSigmaPx } from "./normalise";
+import { estimateOpticalBlur } from "./optics";
 import { validateProfile } from "./profiles";
 import { mmToPx, pxRectToMm, rectMmToPx, rectMmToPxInside } from "./raster";
 import {
@@ -65,6 +66,7 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
   const inspectPx = rectMmToPxInside(alignment.coveredMm, dpi, artwork.width, artwork.height);
   started = performance.now();
   const fit = fitNormalisation(artwork, scan, alignment.artworkToScan, inspectPx, Math.ceil(2.5 * sigmaPx) + radiusPx);
+  const opticalBlurPx = await estimateOpticalBlur(artwork, scan, alignment, fit.model, sigmaPx, inspectPx);
   timings.normalise += performance.now() - started;
 
   const stageTimes = { normalise: 0, compare: 0 };
@@ -74,6 +76,7 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
     model: fit.model,
     sigmaPx,
     radiusPx,
+    windows: { opticalBlurPx, sigmaPx, radiusPx, reachPx: radiusPx + Math.ceil(2 * sigmaPx) },
     lowDeltaE00: Math.max(1, 0.5 * peak),
     peakDeltaE00: peak,
     inspectPx,

@@ -16,16 +16,27 @@ export function lowPassSigmaPx(dpi: number): number {
   return Math.max((0.12 * dpi) / 25.4, 1.2);
 }
 
-// Linear light ↔ 8-bit sRGB for the low-pass: a scanner's optics blend light linearly, so blurring encoded
-// values would leave the artwork's edges shaped differently from the scan's (ΔE00 5–10 along every edge).
+/**
+ * The low-pass of the comparison, the same for artwork and scan so that the two are blurred alike: a Gaussian
+ * of σ px on the 8-bit encoded values (libvips through sharp, truncated where the kernel falls under 0.2 of its
+ * peak — sharp's default). Encoded rather than linear light: libvips' vectorised 8-bit path costs a fifth of
+ * the 16-bit one, and on simulated sheets the encoded pair left fewer false findings at 100 dpi (4 against 131
+ * on two clean B2 sheets) and the same at 300 dpi (none on four). Returns RGBA with alpha 255.
+ */
+export async function lowPass(rgba: Uint8Array, width: number, height: number, sigmaPx: number): Promise<Uint8Array> {
+  const out = await sharp(rgba, { raw: { width, height, channels: 4 } }).blur(Math.max(0.3, sigmaPx)).raw().toBuffer();
+  return new Uint8Array(out.buffer, out.byteOffset, out.length);
+}
+
 const TO_LINEAR16 = Uint16Array.from({ length: 256 }, (_, i) => Math.round(srgbToLinear(i / 255) * 65535));
 const FROM_LINEAR16 = Uint8Array.from({ length: 65536 }, (_, i) => Math.round(linearToSrgb(i / 65535) * 255));
 
 /**
- * Gaussian low-pass of an RGBA buffer in linear light (16 bits a channel, libvips through sharp), returned as
- * 8-bit sRGB RGBA with alpha 255.
+ * A Gaussian blur in linear light (16 bits a channel), as a scanner's optics blend light: applied to the
+ * sharp artwork it stands for the scanner's own blur. The kernel is kept down to 0.05 of its peak so that a
+ * σ under a pixel still blurs. Returns 8-bit sRGB RGBA with alpha 255.
  */
-export async function lowPass(rgba: Uint8Array, width: number, height: number, sigmaPx: number): Promise<Uint8Array> {
+export async function opticalBlur(rgba: Uint8Array, width: number, height: number, sigmaPx: number): Promise<Uint8Array> {
   const n = width * height;
   const linear = new Uint16Array(n * 3);
   for (let i = 0, p = 0; i < n; i++, p += 4) {
@@ -34,7 +45,7 @@ export async function lowPass(rgba: Uint8Array, width: number, height: number, s
     linear[i * 3 + 2] = TO_LINEAR16[rgba[p + 2]];
   }
   const out = await sharp(linear, { raw: { width, height, channels: 3 } })
-    .blur(Math.max(0.3, sigmaPx))
+    .blur({ sigma: Math.max(0.3, sigmaPx), minAmplitude: 0.05 })
     .toColourspace("rgb16")
     .raw({ depth: "ushort" })
     .toBuffer();

@@ -30,13 +30,19 @@ describe("low-pass", () => {
     expect(lowPassSigmaPx(600)).toBeCloseTo(2.835, 3);
   });
 
-  it("blends in linear light: the middle of a black-white edge is sRGB 188, not 128 (IEC 61966-2-1)", async () => {
-    const w = 40, h = 4, img = new Uint8Array(w * h * 4);
+  it("blurs a step edge like a Gaussian of σ: within 8 levels of 255·Φ(x/σ) across the edge", async () => {
+    // Φ from erf by Abramowitz & Stegun, Handbook of Mathematical Functions (1964), formula 7.1.26 (|error| < 1.5e-7).
+    const erf = (x: number) => {
+      const t = 1 / (1 + 0.3275911 * Math.abs(x));
+      const y = 1 - ((((1.061405429 * t - 1.453152027) * t + 1.421413741) * t - 0.284496736) * t + 0.254829592) * t * Math.exp(-x * x);
+      return x < 0 ? -y : y;
+    };
+    const phi = (x: number) => 0.5 * (1 + erf(x / Math.SQRT2));
+    const w = 40, h = 9, sigma = 1.2, img = new Uint8Array(w * h * 4);
     for (let i = 0; i < w * h; i++) img.set(i % w < 20 ? [0, 0, 0, 255] : [255, 255, 255, 255], i * 4);
-    const out = await lowPass(img, w, h, 3);
-    const mid = (out[(w + 19) * 4] + out[(w + 20) * 4]) / 2;
-    expect(mid).toBeGreaterThan(180);
-    expect(mid).toBeLessThan(196);
+    const out = await lowPass(img, w, h, sigma);
+    for (let x = 14; x < 26; x++) expect(Math.abs(out[(4 * w + x) * 4] - 255 * phi((x + 0.5 - 20) / sigma))).toBeLessThan(8);
+    expect(out[(4 * w + 19) * 4] + out[(4 * w + 20) * 4]).toBeCloseTo(255, -1);
   });
 });
 
