@@ -11,6 +11,26 @@ export interface PxRegion {
   h: number;
 }
 
+/** Output buffers reused from one region to the next (the caller is done with a region before the next). */
+export class WarpBuffers {
+  private rgbaBuffer = new Uint8Array(0);
+  private maskBuffer = new Uint8Array(0);
+  rgba(n: number): Uint8Array {
+    if (this.rgbaBuffer.length < n) this.rgbaBuffer = new Uint8Array(n);
+    return zeroed(this.rgbaBuffer, n);
+  }
+  mask(n: number): Uint8Array {
+    if (this.maskBuffer.length < n) this.maskBuffer = new Uint8Array(n);
+    return zeroed(this.maskBuffer, n);
+  }
+}
+
+function zeroed(buffer: Uint8Array, n: number): Uint8Array {
+  const view = buffer.subarray(0, n);
+  view.fill(0);
+  return view;
+}
+
 /**
  * `region` (artwork px, default the whole page) of the scan seen through the alignment; `mask` is 1 where the
  * scan covers the pixel. With a local field the scan point of artwork pixel p is artworkToScan(p + field(p)).
@@ -20,11 +40,12 @@ export function warpScanToArtwork(
   alignment: Pick<Alignment, "artworkToScan" | "localField">,
   artwork: { width: number; height: number },
   region: PxRegion = { x: 0, y: 0, w: artwork.width, h: artwork.height },
+  into?: WarpBuffers,
 ): { image: RgbaImage; mask: Uint8Array } {
   const { w, h } = region;
   if (!(w > 0 && h > 0 && Number.isInteger(w) && Number.isInteger(h))) throw new RangeError("region must have a positive integer size");
-  const out = new Uint8Array(w * h * 4);
-  const mask = new Uint8Array(w * h);
+  const out = into ? into.rgba(w * h * 4) : new Uint8Array(w * h * 4);
+  const mask = into ? into.mask(w * h) : new Uint8Array(w * h);
   const m = alignment.artworkToScan as Affine;
   const field = alignment.localField;
   const dx = field ? new Float64Array(w) : null, dy = field ? new Float64Array(w) : null;
@@ -46,16 +67,16 @@ export function warpScanToArtwork(
       if (!(px >= -0.5 && py >= -0.5 && px <= sw - 0.5 && py <= sh - 0.5)) continue;
       mask[row * w + col] = 1;
       if (src32 !== null && px >= 0 && py >= 0 && px < sw - 1 && py < sh - 1) {
-        // Inside: bilinear in 8-bit fixed point (1/256 px), all channels of a word at once — the bulk of a sheet.
+        // Inside: bilinear in fixed point at 1/16 px (under 0.03 px of error), two channels a multiply: with
+        // weights summing to 256, red and blue (or green and alpha) products stay in separate 16-bit fields.
         const x0 = px | 0, y0 = py | 0;
-        const fx = ((px - x0) * 256) | 0, fy = ((py - y0) * 256) | 0;
+        const fx = ((px - x0) * 16) | 0, fy = ((py - y0) * 16) | 0;
         const p = y0 * sw + x0;
         const a = src32[p], b = src32[p + 1], c = src32[p + sw], d = src32[p + sw + 1];
-        const w00 = (256 - fx) * (256 - fy), w01 = fx * (256 - fy), w10 = (256 - fx) * fy, w11 = fx * fy;
-        const r = (w00 * (a & 255) + w01 * (b & 255) + w10 * (c & 255) + w11 * (d & 255) + 32768) >>> 16;
-        const g = (w00 * ((a >>> 8) & 255) + w01 * ((b >>> 8) & 255) + w10 * ((c >>> 8) & 255) + w11 * ((d >>> 8) & 255) + 32768) >>> 16;
-        const bl = (w00 * ((a >>> 16) & 255) + w01 * ((b >>> 16) & 255) + w10 * ((c >>> 16) & 255) + w11 * ((d >>> 16) & 255) + 32768) >>> 16;
-        out32[row * w + col] = (r | (g << 8) | (bl << 16) | 0xff000000) >>> 0;
+        const w00 = (16 - fx) * (16 - fy), w01 = fx * (16 - fy), w10 = (16 - fx) * fy, w11 = fx * fy;
+        const rb = (a & 0xff00ff) * w00 + (b & 0xff00ff) * w01 + (c & 0xff00ff) * w10 + (d & 0xff00ff) * w11 + 0x800080;
+        const g = ((a >>> 8) & 0xff) * w00 + ((b >>> 8) & 0xff) * w01 + ((c >>> 8) & 0xff) * w10 + ((d >>> 8) & 0xff) * w11 + 0x80;
+        out32[row * w + col] = ((rb >>> 8) & 0xff00ff) | (g & 0xff00) | 0xff000000;
         continue;
       }
       // Along the scan's border: clamp to the outer pixel centres, then interpolate between the four neighbours.

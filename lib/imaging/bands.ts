@@ -2,6 +2,7 @@
 // enough for the low-pass and the registration radius, low-pass both, apply the colour model to the scan,
 // then compare the core. Full-width bands of this keep memory bounded on a B1 sheet at 300 dpi.
 import { warpScanToArtwork } from "./align";
+import { WarpBuffers } from "./align-warp";
 import { compareBand, CompareScratch, type BandDifference } from "./compare";
 import { applyColourModel, lowPass, type ColourModel } from "./normalise";
 import { preparedRect, type ContrastWindows } from "./prepared";
@@ -11,10 +12,14 @@ import type { Alignment, RgbaImage } from "./types";
 /** RGBA (alpha 255) of a rectangle of the scan seen in the artwork's pixel grid, and 1 where the scan covers it. */
 export type AlignedScanSource = (rect: PxRect) => { rgba: Uint8Array; mask: Uint8Array };
 
-/** The scan through its alignment, resampled one rectangle at a time: no full-size warped copy is held. */
-export function alignedScanSource(scan: RgbaImage, alignment: Alignment, artwork: RgbaImage): AlignedScanSource {
+/**
+ * The scan through its alignment, resampled one rectangle at a time: no full-size warped copy is held. With
+ * `reuse`, each rectangle overwrites the previous one's buffers (the band loop); without, every call is fresh.
+ */
+export function alignedScanSource(scan: RgbaImage, alignment: Alignment, artwork: RgbaImage, reuse = false): AlignedScanSource {
+  const buffers = reuse ? new WarpBuffers() : undefined;
   return (rect) => {
-    const { image, mask } = warpScanToArtwork(scan, alignment, artwork, rect);
+    const { image, mask } = warpScanToArtwork(scan, alignment, artwork, rect, buffers);
     return { rgba: image.data as Uint8Array, mask };
   };
 }

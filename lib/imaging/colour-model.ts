@@ -95,19 +95,26 @@ export function fitColourModel(pairs: SamplePairs): ColourModel {
   const curved = (r: number, g: number, b: number) => [interp(curves[0], r), interp(curves[1], g), interp(curves[2], b)];
   const points = groups.map((gr) => ({ x: curved(gr.scan[0], gr.scan[1], gr.scan[2]).map((v) => v / 255), y: gr.art.map((v) => v / 255) }));
   const beta = fitPolynomial(points);
-  const base = (r: number, g: number, b: number): number[] => {
-    const x = curved(r, g, b).map((v) => v / 255);
-    const phi = features(x[0], x[1], x[2]);
-    return [0, 1, 2].map((c) => {
-      let v = x[c];
-      for (let j = 0; j < FEATURES; j++) v += beta[c * FEATURES + j] * phi[j];
-      return v * 255;
-    });
-  };
+  // The table at its nodes: tone curves, then the polynomial. Nodes fall on whole 8-bit codes only at the ends,
+  // so the curves are sampled once per node index (LUT_SIZE values a channel), not per node.
+  const nodeCurve = [0, 1, 2].map((c) => Float64Array.from({ length: LUT_SIZE }, (_, i) => interp(curves[c], i * STEP) / 255));
   const lut = new Float32Array(LUT_SIZE ** 3 * 3);
-  for (let r = 0, o = 0; r < LUT_SIZE; r++)
-    for (let g = 0; g < LUT_SIZE; g++)
-      for (let b = 0; b < LUT_SIZE; b++, o += 3) lut.set(base(r * STEP, g * STEP, b * STEP), o);
+  for (let r = 0, o = 0; r < LUT_SIZE; r++) {
+    const x0 = nodeCurve[0][r];
+    for (let g = 0; g < LUT_SIZE; g++) {
+      const x1 = nodeCurve[1][g];
+      for (let b = 0; b < LUT_SIZE; b++, o += 3) {
+        const x2 = nodeCurve[2][b];
+        const phi4 = x0 * x0, phi5 = x1 * x1, phi6 = x2 * x2, phi7 = x0 * x1, phi8 = x0 * x2, phi9 = x1 * x2;
+        for (let c = 0; c < 3; c++) {
+          const k = c * FEATURES;
+          const v = (c === 0 ? x0 : c === 1 ? x1 : x2) + beta[k] + beta[k + 1] * x0 + beta[k + 2] * x1 + beta[k + 3] * x2 +
+            beta[k + 4] * phi4 + beta[k + 5] * phi5 + beta[k + 6] * phi6 + beta[k + 7] * phi7 + beta[k + 8] * phi8 + beta[k + 9] * phi9;
+          lut[o + c] = v * 255;
+        }
+      }
+    }
+  }
   // Local corrections: what the table still gets wrong at each artwork colour, spread around its scan colour
   // by a Gaussian kernel and fading to nothing away from the sheet's colours; a few rounds, since neighbouring
   // colours' kernels overlap.
@@ -119,11 +126,15 @@ export function fitColourModel(pairs: SamplePairs): ColourModel {
       const predicted = interpolate(lut, gr.scan[0], gr.scan[1], gr.scan[2]);
       const res = [0, 1, 2].map((c) => gr.art[c] - predicted[c]);
       const ci = gr.scan.map((v) => Math.round(v / STEP));
-      for (let r = Math.max(0, ci[0] - reach); r <= Math.min(LUT_SIZE - 1, ci[0] + reach); r++)
-        for (let g = Math.max(0, ci[1] - reach); g <= Math.min(LUT_SIZE - 1, ci[1] + reach); g++)
-          for (let b = Math.max(0, ci[2] - reach); b <= Math.min(LUT_SIZE - 1, ci[2] + reach); b++) {
-            const d2 = (r * STEP - gr.scan[0]) ** 2 + (g * STEP - gr.scan[1]) ** 2 + (b * STEP - gr.scan[2]) ** 2;
-            const w = Math.exp(-d2 / (2 * KERNEL_SIGMA * KERNEL_SIGMA));
+      // The Gaussian kernel is separable: one weight per node along each axis.
+      const axis = [0, 1, 2].map((c) => {
+        const from = Math.max(0, ci[c] - reach), to = Math.min(LUT_SIZE - 1, ci[c] + reach);
+        return { from, to, w: Float64Array.from({ length: to - from + 1 }, (_, k) => Math.exp(-(((from + k) * STEP - gr.scan[c]) ** 2) / (2 * KERNEL_SIGMA * KERNEL_SIGMA))) };
+      });
+      for (let r = axis[0].from; r <= axis[0].to; r++)
+        for (let g = axis[1].from; g <= axis[1].to; g++)
+          for (let b = axis[2].from; b <= axis[2].to; b++) {
+            const w = axis[0].w[r - axis[0].from] * axis[1].w[g - axis[1].from] * axis[2].w[b - axis[2].from];
             if (w < 1e-4) continue;
             const n = (r * LUT_SIZE + g) * LUT_SIZE + b;
             den[n] += w;
@@ -147,24 +158,38 @@ interface ColourGroup {
 
 /** Flat samples grouped by artwork colour (6 bits a channel); each group's scan colour is its median. */
 function groupByArtwork(pairs: SamplePairs): ColourGroup[] {
-  const members = new Map<number, number[]>();
-  for (let i = 0; i < pairs.flatCount; i++) {
-    const a = pairs.flatArt;
-    const key = ((a[i * 3] >> 2) << 12) | ((a[i * 3 + 1] >> 2) << 6) | (a[i * 3 + 2] >> 2);
-    let list = members.get(key);
-    if (!list) members.set(key, (list = []));
-    list.push(i);
+  const n = pairs.flatCount, a = pairs.flatArt;
+  // Counting sort of the samples by key: each group's members end up next to each other.
+  const keys = new Int32Array(n);
+  const starts = new Int32Array((1 << 18) + 1);
+  for (let i = 0; i < n; i++) {
+    keys[i] = ((a[i * 3] >> 2) << 12) | ((a[i * 3 + 1] >> 2) << 6) | (a[i * 3 + 2] >> 2);
+    starts[keys[i] + 1]++;
   }
+  for (let k = 1; k < starts.length; k++) starts[k] += starts[k - 1];
+  const order = new Int32Array(n), fill = starts.slice(0, -1);
+  for (let i = 0; i < n; i++) order[fill[keys[i]]++] = i;
   const groups: ColourGroup[] = [];
-  for (const list of members.values()) {
-    if (list.length < MIN_GROUP) continue;
-    const median = (arr: Float32Array, c: number) => {
-      const v = list.map((i) => arr[i * 3 + c]).sort((x, y) => x - y);
-      return v[v.length >> 1];
-    };
-    groups.push({ art: [0, 1, 2].map((c) => median(pairs.flatArt, c)), scan: [0, 1, 2].map((c) => median(pairs.flatScan, c)), count: list.length });
+  const values = new Float32Array(n);
+  const channelMedian = (arr: Float32Array, from: number, to: number, c: number) => {
+    for (let j = from; j < to; j++) values[j - from] = arr[order[j] * 3 + c];
+    return median(values.subarray(0, to - from));
+  };
+  for (let k = 0; k < starts.length - 1; k++) {
+    const from = starts[k], to = starts[k + 1];
+    if (to - from < MIN_GROUP) continue;
+    groups.push({
+      art: [0, 1, 2].map((c) => channelMedian(pairs.flatArt, from, to, c)),
+      scan: [0, 1, 2].map((c) => channelMedian(pairs.flatScan, from, to, c)),
+      count: to - from,
+    });
   }
   return groups;
+}
+
+/** Upper median of a typed array, sorted in place. */
+function median(v: Float32Array): number {
+  return v.sort()[v.length >> 1];
 }
 
 /** Trilinear value of the table at a scan colour (0–255 floats), unclamped. */
@@ -218,10 +243,9 @@ function fitToneCurve(groups: ColourGroup[], pairs: SamplePairs, c: number): Flo
     bin.scan.push(sv);
     bin.art.push(a[i * 3 + c]);
   }
-  const median = (v: number[]) => v.sort((x, y) => x - y)[v.length >> 1];
   for (const bin of bins) {
     if (bin.art.length < MIN_TONE_BIN) continue;
-    points.push({ x: median(bin.scan), y: median(bin.art), w: bin.art.length });
+    points.push({ x: median(Float32Array.from(bin.scan)), y: median(Float32Array.from(bin.art)), w: bin.art.length });
   }
   const total = points.reduce((t, p) => t + p.w, 0);
   const flatLo = Math.min(256, ...points.map((p) => p.x)), flatHi = Math.max(-1, ...points.map((p) => p.x));
@@ -264,12 +288,18 @@ function powerCurve(points: { x: number; y: number; w: number }[]): Float32Array
   return curve;
 }
 
+/** The 0.2 and 99.8 percentiles of one channel (values 0–255), from a histogram of 1/16-code bins. */
 function percentiles(values: Float32Array, c: number, n: number): [number, number] {
   if (n === 0) return [0, 255];
-  const v = new Float32Array(n);
-  for (let i = 0; i < n; i++) v[i] = values[i * 3 + c];
-  v.sort();
-  return [v[Math.floor(n * 0.002)], v[Math.min(n - 1, Math.floor(n * 0.998))]];
+  const BINS = 4096;
+  const hist = new Uint32Array(BINS);
+  for (let i = 0; i < n; i++) hist[Math.min(BINS - 1, Math.max(0, Math.round(values[i * 3 + c] * 16)))]++;
+  const at = (rank: number) => {
+    let seen = 0;
+    for (let bin = 0; bin < BINS; bin++) if ((seen += hist[bin]) > rank) return bin / 16;
+    return 255;
+  };
+  return [at(Math.floor(n * 0.002)), at(Math.min(n - 1, Math.floor(n * 0.998)))];
 }
 
 /**

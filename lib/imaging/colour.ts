@@ -55,6 +55,23 @@ export function linearToSrgb(v: number): number {
 /** Linear value of every 8-bit sRGB code, built once: 256 entries. */
 export const SRGB8_TO_LINEAR: Float64Array = Float64Array.from({ length: 256 }, (_, i) => srgbToLinear(i / 255));
 
+// Fast encoding of linear light to 0–255 sRGB: a table with linear interpolation. The curve is steepest near
+// black, where steps of 1/65536 keep the error under 0.01 of a code; above 1/16 a coarser table holds it there.
+const ENC_FINE = Float64Array.from({ length: 4098 }, (_, i) => 255 * linearToSrgb(Math.min(i, 4096) / 65536));
+const ENC_COARSE = Float64Array.from({ length: 4098 }, (_, i) => 255 * linearToSrgb(Math.min(i, 4096) / 4096));
+
+/** 255 · linearToSrgb(v) for v in [0, 1] (clamped), within 0.01. */
+export function linearToSrgb255Fast(v: number): number {
+  if (!(v > 0)) return 0;
+  if (v >= 1) return 255;
+  if (v < 1 / 16) {
+    const x = v * 65536, i = x | 0;
+    return ENC_FINE[i] + (ENC_FINE[i + 1] - ENC_FINE[i]) * (x - i);
+  }
+  const x = v * 4096, i = x | 0;
+  return ENC_COARSE[i] + (ENC_COARSE[i + 1] - ENC_COARSE[i]) * (x - i);
+}
+
 // CIE 15:2004 constants as exact fractions: ε = (6/29)³, κ = (29/3)³.
 const EPSILON = 216 / 24389;
 const KAPPA = 24389 / 27;

@@ -87,34 +87,52 @@ export interface BandDifference {
 export class CompareScratch {
   private screen = new Uint8Array(0);
   private labScan = new Float32Array(0);
+  private labDone = new Uint8Array(0);
+  private results = { deltaE: new Float32Array(0), score: new Float32Array(0), kind: new Uint8Array(0), structural: new Uint8Array(0) };
+  /** Direct-mapped cache of CIELAB by 24-bit RGB: a normalised, low-passed scan repeats its colours a lot. */
+  readonly labKeys = new Int32Array(LAB_CACHE_SLOTS).fill(-1);
+  readonly labValues = new Float32Array(LAB_CACHE_SLOTS * 3);
+
   screenBuffer(n: number): Uint8Array {
     if (this.screen.length < n) this.screen = new Uint8Array(n);
     const out = this.screen.subarray(0, n);
     out.fill(0);
     return out;
   }
-  private needed = new Uint8Array(0);
-  private rowMask = new Uint8Array(0);
-  need(n: number, width: number): [Uint8Array, Uint8Array] {
-    if (this.needed.length < n) this.needed = new Uint8Array(n);
-    if (this.rowMask.length < width) this.rowMask = new Uint8Array(width);
-    const out = this.needed.subarray(0, n);
-    out.fill(0);
-    return [out, this.rowMask.subarray(0, width)];
+
+  /** The scan's CIELAB per pixel, filled on demand, and its "filled" flags (zeroed). */
+  lab(n: number): [Float32Array, Uint8Array] {
+    if (this.labDone.length < n) {
+      this.labScan = new Float32Array(n * 3);
+      this.labDone = new Uint8Array(n);
+    }
+    const done = this.labDone.subarray(0, n);
+    done.fill(0);
+    return [this.labScan.subarray(0, n * 3), done];
   }
-  lab(n: number): Float32Array {
-    if (this.labScan.length < n) this.labScan = new Float32Array(n);
-    return this.labScan.subarray(0, n);
+
+  /** Zeroed per-pixel result arrays, valid until the next band: the caller consumes them before asking again. */
+  result(n: number): { deltaE: Float32Array; score: Float32Array; kind: Uint8Array; structural: Uint8Array } {
+    if (this.results.deltaE.length < n) {
+      this.results = { deltaE: new Float32Array(n), score: new Float32Array(n), kind: new Uint8Array(n), structural: new Uint8Array(n) };
+    }
+    const r = this.results;
+    const out = { deltaE: r.deltaE.subarray(0, n), score: r.score.subarray(0, n), kind: r.kind.subarray(0, n), structural: r.structural.subarray(0, n) };
+    out.deltaE.fill(0);
+    out.score.fill(0);
+    out.kind.fill(0);
+    out.structural.fill(0);
+    return out;
   }
 }
 
+const LAB_CACHE_SLOTS = 1 << 16;
+
+/** The difference of one band; its arrays belong to `scratch` and stay valid until its next band. */
 export function compareBand(band: BandPair, settings: CompareSettings, scratch: CompareScratch): BandDifference {
   const { width, rows, coreY, coreRows, art } = band;
   const n = width * coreRows;
-  const deltaE = new Float32Array(n);
-  const kind = new Uint8Array(n);
-  const score = new Float32Array(n);
-  const structural = new Uint8Array(n);
+  const { deltaE, kind, score, structural } = scratch.result(n);
   if (art.low.length !== width * rows * 4 || band.scan.length !== width * rows * 4 || band.inspect.length !== n) {
     throw new RangeError(`Band buffers do not match ${width} × ${rows} px with ${coreRows} core rows.`);
   }
@@ -138,8 +156,10 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
     if (count === 0) return { deltaE, score, kind, structural, flagged: 0, candidates: 0 };
   }
   const r = settings.radiusPx;
-  const ls = scratch.lab(width * rows * 3);
-  scanLabAround(band, screen, r, ls, scratch);
+  // The scan's CIELAB only where it is looked at: screened pixels and, where they need the search, their
+  // neighbours within the registration radius (the artwork's is prepared once).
+  const [ls, done] = scratch.lab(width * rows);
+  const keys = scratch.labKeys, values = scratch.labValues, scan = band.scan;
   const la = art.lab, contrastOf = art.contrast;
   const bound = (low / DE00_OVER_DEAB) ** 2;
   const peak = settings.peakDeltaE00;
@@ -154,6 +174,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       if (inspect[i] === 0 || (screen !== null && screen[i * 4 + 3] === 0)) continue;
       candidates++;
       const pix = y * width + x, p = pix * 3;
+      if (done[pix] === 0) { scanLab(scan, pix, ls, keys, values); done[pix] = 1; }
       const sl = ls[p], sa = ls[p + 1], sb = ls[p + 2];
       const al = la[p], aa = la[p + 1], ab = la[p + 2];
       const direct = (sl - al) ** 2 + (sa - aa) ** 2 + (sb - ab) ** 2;
@@ -167,7 +188,9 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       // Scan pixel against artwork neighbours, and artwork pixel against scan neighbours.
       let best1 = direct, q1 = p, best2 = direct, q2 = p;
       for (let yy = y0; yy <= y1 && (best1 >= bound || best2 >= bound); yy++) {
-        for (let xx = x0, q = (yy * width + x0) * 3; xx <= x1; xx++, q += 3) {
+        for (let qi = yy * width + x0, qEnd = yy * width + x1; qi <= qEnd; qi++) {
+          const q = qi * 3;
+          if (done[qi] === 0) { scanLab(scan, qi, ls, keys, values); done[qi] = 1; }
           const d1 = (sl - la[q]) ** 2 + (sa - la[q + 1]) ** 2 + (sb - la[q + 2]) ** 2;
           if (d1 < best1) { best1 = d1; q1 = q; }
           const d2 = (al - ls[q]) ** 2 + (aa - ls[q + 1]) ** 2 + (ab - ls[q + 2]) ** 2;
@@ -233,36 +256,19 @@ function labOf(rgba: Uint8Array, i: number, out: Float32Array): void {
   out[i * 3 + 2] = 200 * (fy - fz);
 }
 
-/**
- * CIELAB of the scan, but only within the registration radius of a pixel the screen passed: on a clean sheet
- * that is a small part of the band (the artwork's CIELAB is prepared once).
- */
-function scanLabAround(band: BandPair, screen: Uint8Array | null, reach: number, ls: Float32Array, scratch: CompareScratch): void {
-  const { width, rows, coreY, coreRows, inspect } = band;
-  const [need, dilated] = scratch.need(width * rows, width);
-  if (screen === null) need.fill(1);
-  else {
-    for (let cy = 0; cy < coreRows; cy++) {
-      let any = false;
-      let last = -1e9;
-      for (let x = 0; x < width; x++) {
-        const i = cy * width + x;
-        if (screen[i * 4 + 3] !== 0 && inspect[i] !== 0) { last = x; any = true; }
-        dilated[x] = x - last <= reach ? 1 : 0;
-      }
-      if (!any) continue;
-      last = 1e9;
-      for (let x = width - 1; x >= 0; x--) {
-        const i = cy * width + x;
-        if (screen[i * 4 + 3] !== 0 && inspect[i] !== 0) last = x;
-        if (last - x <= reach) dilated[x] = 1;
-      }
-      const y = cy + coreY;
-      for (let yy = Math.max(0, y - reach); yy <= Math.min(rows - 1, y + reach); yy++) {
-        const o = yy * width;
-        for (let x = 0; x < width; x++) need[o + x] |= dilated[x];
-      }
-    }
+/** CIELAB of scan pixel i into ls, through the direct-mapped cache. */
+function scanLab(scan: Uint8Array, i: number, ls: Float32Array, keys: Int32Array, values: Float32Array): void {
+  const key = (scan[i * 4] << 16) | (scan[i * 4 + 1] << 8) | scan[i * 4 + 2];
+  const slot = Math.imul(key, 0x9e3779b1) >>> 16;
+  if (keys[slot] === key) {
+    ls[i * 3] = values[slot * 3];
+    ls[i * 3 + 1] = values[slot * 3 + 1];
+    ls[i * 3 + 2] = values[slot * 3 + 2];
+    return;
   }
-  for (let i = 0; i < width * rows; i++) if (need[i] !== 0) labOf(band.scan, i, ls);
+  labOf(scan, i, ls);
+  keys[slot] = key;
+  values[slot * 3] = ls[i * 3];
+  values[slot * 3 + 1] = ls[i * 3 + 1];
+  values[slot * 3 + 2] = ls[i * 3 + 2];
 }

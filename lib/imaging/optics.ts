@@ -3,9 +3,9 @@
 // or every edge of fine type differs by a few ΔE00 and the edge allowance has to swallow it. The blur is
 // found by trying a few Gaussian widths (in linear light, as optics blend) on windows of the artwork that hold
 // edges, and keeping the one whose low-passed result lies nearest the normalised scan.
-import { applyColourModel, type ColourModel } from "./colour-model";
-import { lowPass, opticalBlur } from "./normalise";
 import { warpScanToArtwork } from "./align-warp";
+import { linearToSrgb255Fast, SRGB8_TO_LINEAR } from "./colour";
+import { applyColourModel, type ColourModel } from "./colour-model";
 import { intersect, type PxRect } from "./raster";
 import type { Alignment, RgbaImage } from "./types";
 
@@ -16,7 +16,7 @@ import type { Alignment, RgbaImage } from "./types";
 export const OPTICAL_BLUR_STEPS_PX = [0, 0.45, 0.6, 0.75, 0.9, 1.1, 1.35, 1.6];
 const WINDOW = 32;
 const GRID = 8;
-const WINDOWS = 24;
+const WINDOWS = 16;
 
 /** σ (px) of the scanner's blur, one of OPTICAL_BLUR_STEPS_PX; 0 when too few windows hold an edge. */
 export async function estimateOpticalBlur(
@@ -46,24 +46,84 @@ export async function estimateOpticalBlur(
       scanned.set(image.data.subarray(row * side * 4, (row + 1) * side * 4), (row * mosaicW + k * side) * 4);
     }
   });
-  const scanLow = await lowPass(scanned, mosaicW, side, sigmaPx);
+  const scanLow = toRgba([0, 1, 2].map((c) => blurPlane(plane(scanned, n, c, (v) => v), mosaicW, side, sigmaPx, TRUNCATE_LOW_PASS)), n);
   applyColourModel(model, scanLow);
-  let best = 0, bestError = Infinity;
-  for (const step of OPTICAL_BLUR_STEPS_PX) {
-    const blurred = step > 0 ? await opticalBlur(art, mosaicW, side, step) : art;
-    const artLow = await lowPass(blurred, mosaicW, side, sigmaPx);
+  // The artwork's trials in green alone: blur shows in every channel alike, and green carries most of the lightness.
+  const artLinear = plane(art, n, 1, (v) => SRGB8_TO_LINEAR[v]);
+  const score = (step: number) => {
+    const seen = step > 0 ? blurPlane(artLinear, mosaicW, side, step, TRUNCATE_OPTICS) : artLinear;
+    const artLow = blurPlane(seen.map(linearToSrgb255Fast), mosaicW, side, sigmaPx, TRUNCATE_LOW_PASS);
     let error = 0;
     for (let k = 0; k < sites.length; k++) {
       if (!usable[k]) continue;
       for (let row = margin; row < margin + WINDOW; row++) {
-        for (let col = margin, p = (row * mosaicW + k * side + margin) * 4; col < margin + WINDOW; col++, p += 4) {
-          error += (artLow[p] - scanLow[p]) ** 2 + (artLow[p + 1] - scanLow[p + 1]) ** 2 + (artLow[p + 2] - scanLow[p + 2]) ** 2;
-        }
+        for (let col = margin, i = row * mosaicW + k * side + margin; col < margin + WINDOW; col++, i++) error += (artLow[i] - scanLow[i * 4 + 1]) ** 2;
       }
     }
-    if (error < bestError) { bestError = error; best = step; }
+    return error;
+  };
+  // The misfit falls and then rises with the width tried: walk downhill from the width this artwork's last
+  // sheet had (a run comes from one scanner), so a sheet usually costs three trials.
+  const tried = new Map<number, number>();
+  const misfit = (i: number) => {
+    let e = tried.get(i);
+    if (e === undefined) tried.set(i, (e = score(OPTICAL_BLUR_STEPS_PX[i])));
+    return e;
+  };
+  let i = lastStep.get(artwork.data.buffer) ?? 0;
+  for (;;) {
+    if (i > 0 && misfit(i - 1) < misfit(i)) i--;
+    else if (i < OPTICAL_BLUR_STEPS_PX.length - 1 && misfit(i + 1) < misfit(i)) i++;
+    else break;
   }
-  return best;
+  lastStep.set(artwork.data.buffer, i);
+  return OPTICAL_BLUR_STEPS_PX[i];
+}
+
+/** Per thread: the step found on the last sheet of each artwork. */
+const lastStep = new WeakMap<ArrayBufferLike, number>();
+
+/** Kernels end where they fall under this share of their peak: as sharp's default for the low-pass. */
+const TRUNCATE_LOW_PASS = 0.2;
+const TRUNCATE_OPTICS = 0.05;
+
+function plane(rgba: Uint8Array, n: number, c: number, f: (v: number) => number): Float32Array {
+  const out = new Float32Array(n);
+  for (let i = 0; i < n; i++) out[i] = f(rgba[i * 4 + c]);
+  return out;
+}
+
+function toRgba(p: Float32Array[], n: number): Uint8Array {
+  const out = new Uint8Array(n * 4);
+  for (let i = 0; i < n; i++) {
+    for (let c = 0; c < 3; c++) out[i * 4 + c] = Math.min(255, Math.max(0, Math.round(p[c][i])));
+    out[i * 4 + 3] = 255;
+  }
+  return out;
+}
+
+/** Separable Gaussian of σ on a float plane (edges held), the kernel cut where it falls under `truncate`. */
+function blurPlane(src: Float32Array, w: number, h: number, sigma: number, truncate: number): Float32Array {
+  const radius = Math.max(1, Math.floor(sigma * Math.sqrt(-2 * Math.log(truncate))));
+  const kernel = Float64Array.from({ length: 2 * radius + 1 }, (_, k) => Math.exp(-((k - radius) ** 2) / (2 * sigma * sigma)));
+  const sum = kernel.reduce((a, b) => a + b, 0);
+  for (let k = 0; k < kernel.length; k++) kernel[k] /= sum;
+  const tmp = new Float32Array(w * h), out = new Float32Array(w * h);
+  for (let y = 0; y < h; y++) {
+    for (let x = 0; x < w; x++) {
+      let v = 0;
+      for (let k = -radius; k <= radius; k++) v += kernel[k + radius] * src[y * w + Math.min(w - 1, Math.max(0, x + k))];
+      tmp[y * w + x] = v;
+    }
+  }
+  for (let y = 0; y < h; y++) {
+    for (let x = 0; x < w; x++) {
+      let v = 0;
+      for (let k = -radius; k <= radius; k++) v += kernel[k + radius] * tmp[Math.min(h - 1, Math.max(0, y + k)) * w + x];
+      out[y * w + x] = v;
+    }
+  }
+  return out;
 }
 
 /** Window corners (core top-left) with the most edge on a GRID × GRID raster over the inspected area. */

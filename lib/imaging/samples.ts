@@ -2,7 +2,7 @@
 // that no full-size warped copy of the scan is needed. "Flat" pairs lie where the artwork is uniform over the
 // whole radius of the low-pass and registration tolerance, so misregistration cannot bias them; "all" pairs
 // (window means of both) feed the percentile anchors of the tone curves.
-import { linearToSrgb, SRGB8_TO_LINEAR } from "./colour";
+import { linearToSrgb255Fast, SRGB8_TO_LINEAR } from "./colour";
 import type { AffineMap, PxRect } from "./raster";
 import type { RgbaImage } from "./types";
 
@@ -51,7 +51,7 @@ export function sampleFlatPairs(
       }
     }
     const n = (2 * k + 1) * (2 * k + 1);
-    out[o] = 255 * linearToSrgb(s0 / n); out[o + 1] = 255 * linearToSrgb(s1 / n); out[o + 2] = 255 * linearToSrgb(s2 / n);
+    out[o] = linearToSrgb255Fast(s0 / n); out[o + 1] = linearToSrgb255Fast(s1 / n); out[o + 2] = linearToSrgb255Fast(s2 / n);
   };
   for (let y = y0; y < y1; y += stride) {
     for (let x = x0; x < x1; x += stride) {

@@ -8,6 +8,7 @@ import {
   deltaE76,
   labF,
   labFFast,
+  linearToSrgb255Fast,
   rgbaToLab,
   srgb8ToLab,
   srgbToLinear,
@@ -152,6 +153,17 @@ describe("sRGB → CIELAB (D65 white, no adaptation)", () => {
     }
     expect(worst).toBeLessThan(1e-6);
     expect(labFFast(1.02)).toBe(labF(1.02));
+  });
+
+  it("fast linear → sRGB encoding stays within 0.01 of a code of IEC 61966-2-1's curve over [0, 1]", () => {
+    let worst = 0;
+    for (let i = 0; i <= 200_000; i++) {
+      const v = i / 200_000;
+      worst = Math.max(worst, Math.abs(linearToSrgb255Fast(v) - 255 * linearToSrgb(v)));
+    }
+    expect(worst).toBeLessThan(0.01);
+    expect(linearToSrgb255Fast(-1)).toBe(0);
+    expect(linearToSrgb255Fast(2)).toBe(255);
   });
 
   it("reuses an output buffer and rejects wrong sizes with a clear message", () => {
