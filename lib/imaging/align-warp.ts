@@ -51,14 +51,30 @@ export function warpScanToArtwork(
   const dx = field ? new Float64Array(w) : null, dy = field ? new Float64Array(w) : null;
   const src = scan.data, sw = scan.width, sh = scan.height;
   // Whole-pixel reads of the scan (little-endian RGBA words) for the fixed-point path.
-  const src32 = src.byteOffset % 4 === 0 ? new Uint32Array(src.buffer, src.byteOffset, sw * sh) : null;
-  const out32 = new Uint32Array(out.buffer);
+  const src32 = src.byteOffset % 4 === 0 ? new Int32Array(src.buffer, src.byteOffset, sw * sh) : null;
+  const out32 = new Int32Array(out.buffer);
   for (let row = 0; row < h; row++) {
     const y = region.y + row;
     if (field) fieldRow(field, region.x, y, dx!, dy!);
     // Scan position of the row's first pixel and its step per column (the affine part, exact in doubles).
     let xs = m[0] * region.x + m[1] * y + m[2], ys = m[3] * region.x + m[4] * y + m[5];
+    // Without a local field, the columns whose scan point lies well inside the scan form one run: resample it
+    // in a loop with no bounds checks, and leave only the ends to the careful loop below.
+    let fastFrom = w, fastTo = w;
+    if (!field && src32 !== null) {
+      [fastFrom, fastTo] = insideRun(xs, m[0], sw, w, insideRun(ys, m[3], sh, w, [0, w]));
+      if (fastTo > fastFrom) {
+        mask.fill(1, row * w + fastFrom, row * w + fastTo);
+        resampleRun(src32, sw, out32, row * w, xs, ys, m[0], m[3], fastFrom, fastTo);
+      }
+    }
     for (let col = 0; col < w; col++, xs += m[0], ys += m[3]) {
+      if (col === fastFrom && fastTo > fastFrom) {
+        xs += m[0] * (fastTo - fastFrom);
+        ys += m[3] * (fastTo - fastFrom);
+        col = fastTo;
+        if (col >= w) break;
+      }
       let px = xs, py = ys;
       if (field) {
         px += m[0] * dx![col] + m[1] * dy![col];
@@ -67,16 +83,7 @@ export function warpScanToArtwork(
       if (!(px >= -0.5 && py >= -0.5 && px <= sw - 0.5 && py <= sh - 0.5)) continue;
       mask[row * w + col] = 1;
       if (src32 !== null && px >= 0 && py >= 0 && px < sw - 1 && py < sh - 1) {
-        // Inside: bilinear in fixed point at 1/16 px (under 0.03 px of error), two channels a multiply: with
-        // weights summing to 256, red and blue (or green and alpha) products stay in separate 16-bit fields.
-        const x0 = px | 0, y0 = py | 0;
-        const fx = ((px - x0) * 16) | 0, fy = ((py - y0) * 16) | 0;
-        const p = y0 * sw + x0;
-        const a = src32[p], b = src32[p + 1], c = src32[p + sw], d = src32[p + sw + 1];
-        const w00 = (16 - fx) * (16 - fy), w01 = fx * (16 - fy), w10 = (16 - fx) * fy, w11 = fx * fy;
-        const rb = (a & 0xff00ff) * w00 + (b & 0xff00ff) * w01 + (c & 0xff00ff) * w10 + (d & 0xff00ff) * w11 + 0x800080;
-        const g = ((a >>> 8) & 0xff) * w00 + ((b >>> 8) & 0xff) * w01 + ((c >>> 8) & 0xff) * w10 + ((d >>> 8) & 0xff) * w11 + 0x80;
-        out32[row * w + col] = ((rb >>> 8) & 0xff00ff) | (g & 0xff00) | 0xff000000;
+        resampleRun(src32, sw, out32, row * w, px, py, 0, 0, col, col + 1);
         continue;
       }
       // Along the scan's border: clamp to the outer pixel centres, then interpolate between the four neighbours.
@@ -96,6 +103,40 @@ export function warpScanToArtwork(
     }
   }
   return { image: { width: w, height: h, data: out }, mask };
+}
+
+/**
+ * Columns [from, to) of `within` where v0 + step·col lies in [1, size − 2] (a pixel clear of the scan's last
+ * row or column, so the four neighbours exist), rounded inwards.
+ */
+function insideRun(v0: number, step: number, size: number, w: number, within: [number, number]): [number, number] {
+  let [from, to] = within;
+  const lo = 1, hi = size - 2;
+  if (step === 0) return v0 >= lo && v0 <= hi ? [from, to] : [0, 0];
+  const a = (lo - v0) / step, b = (hi - v0) / step;
+  from = Math.max(from, Math.ceil(Math.min(a, b)));
+  to = Math.min(to, Math.floor(Math.max(a, b)) + 1, w);
+  return to > from ? [from, to] : [0, 0];
+}
+
+/** Bilinear resampling of columns [from, to) of one output row, every scan point inside the scan. */
+function resampleRun(src32: Int32Array, sw: number, out32: Int32Array, rowStart: number, xs0: number, ys0: number, sx: number, sy: number, from: number, to: number): void {
+  let px = xs0 + sx * from, py = ys0 + sy * from;
+  for (let col = from; col < to; col++, px += sx, py += sy) {
+    // Fixed point at 1/16 px (a 1/32 px error at most), two channels a multiply: with weights summing to 256,
+    // red and blue (or green alone) products stay in separate 16-bit fields.
+    const x0 = px | 0, y0 = py | 0;
+    const fx = ((px - x0) * 16 + 0.5) | 0, fy = ((py - y0) * 16 + 0.5) | 0;
+    const p = y0 * sw + x0;
+    const a = src32[p], b = src32[p + 1], c = src32[p + sw], d = src32[p + sw + 1];
+    const w00 = (16 - fx) * (16 - fy), w01 = fx * (16 - fy), w10 = (16 - fx) * fy, w11 = fx * fy;
+    // Int32 views and wrapping multiplies keep V8 in 32-bit integers (every pixel's alpha sets the sign bit).
+    let rb = (Math.imul(a & 0xff00ff, w00) + Math.imul(b & 0xff00ff, w01)) | 0;
+    rb = (rb + Math.imul(c & 0xff00ff, w10)) | 0;
+    rb = (rb + Math.imul(d & 0xff00ff, w11) + 0x800080) | 0;
+    const g = ((a >>> 8) & 0xff) * w00 + ((b >>> 8) & 0xff) * w01 + ((c >>> 8) & 0xff) * w10 + ((d >>> 8) & 0xff) * w11 + 0x80;
+    out32[rowStart + col] = ((rb >>> 8) & 0xff00ff) | (g & 0xff00) | -0x1000000;
+  }
 }
 
 /** Displacements of one row of artwork pixels, bilinear between the field's nodes (held at the edges). */

@@ -119,28 +119,39 @@ export function fitColourModel(pairs: SamplePairs): ColourModel {
   // by a Gaussian kernel and fading to nothing away from the sheet's colours; a few rounds, since neighbouring
   // colours' kernels overlap.
   const reach = Math.ceil((3 * KERNEL_SIGMA) / STEP);
-  for (let round = 0; round < REFINE_ROUNDS; round++) {
-    const num = new Float64Array(LUT_SIZE ** 3 * 3);
-    const den = new Float64Array(LUT_SIZE ** 3);
-    for (const gr of groups) {
-      const predicted = interpolate(lut, gr.scan[0], gr.scan[1], gr.scan[2]);
-      const res = [0, 1, 2].map((c) => gr.art[c] - predicted[c]);
-      const ci = gr.scan.map((v) => Math.round(v / STEP));
-      // The Gaussian kernel is separable: one weight per node along each axis.
-      const axis = [0, 1, 2].map((c) => {
-        const from = Math.max(0, ci[c] - reach), to = Math.min(LUT_SIZE - 1, ci[c] + reach);
-        return { from, to, w: Float64Array.from({ length: to - from + 1 }, (_, k) => Math.exp(-(((from + k) * STEP - gr.scan[c]) ** 2) / (2 * KERNEL_SIGMA * KERNEL_SIGMA))) };
-      });
-      for (let r = axis[0].from; r <= axis[0].to; r++)
-        for (let g = axis[1].from; g <= axis[1].to; g++)
-          for (let b = axis[2].from; b <= axis[2].to; b++) {
-            const w = axis[0].w[r - axis[0].from] * axis[1].w[g - axis[1].from] * axis[2].w[b - axis[2].from];
-            if (w < 1e-4) continue;
-            const n = (r * LUT_SIZE + g) * LUT_SIZE + b;
-            den[n] += w;
-            for (let c = 0; c < 3; c++) num[n * 3 + c] += w * res[c];
+  // The Gaussian kernel is separable: one weight per node along each axis, the same in every round.
+  const kernels = groups.map((gr) =>
+    gr.scan.map((v) => {
+      const centre = Math.round(v / STEP);
+      const from = Math.max(0, centre - reach), to = Math.min(LUT_SIZE - 1, centre + reach);
+      return { from, w: Float64Array.from({ length: to - from + 1 }, (_, k) => Math.exp(-(((from + k) * STEP - v) ** 2) / (2 * KERNEL_SIGMA * KERNEL_SIGMA))) };
+    }),
+  );
+  const spread = (each: (node: number, w: number, group: number) => void) => {
+    groups.forEach((_, gi) => {
+      const [kr, kg, kb] = kernels[gi];
+      for (let r = 0; r < kr.w.length; r++)
+        for (let g = 0; g < kg.w.length; g++)
+          for (let b = 0; b < kb.w.length; b++) {
+            const w = kr.w[r] * kg.w[g] * kb.w[b];
+            if (w >= 1e-4) each(((kr.from + r) * LUT_SIZE + kg.from + g) * LUT_SIZE + kb.from + b, w, gi);
           }
-    }
+    });
+  };
+  const den = new Float64Array(LUT_SIZE ** 3);
+  spread((n, w) => { den[n] += w; });
+  const res = new Float64Array(groups.length * 3);
+  for (let round = 0; round < REFINE_ROUNDS; round++) {
+    groups.forEach((gr, gi) => {
+      const predicted = interpolate(lut, gr.scan[0], gr.scan[1], gr.scan[2]);
+      for (let c = 0; c < 3; c++) res[gi * 3 + c] = gr.art[c] - predicted[c];
+    });
+    const num = new Float64Array(LUT_SIZE ** 3 * 3);
+    spread((n, w, gi) => {
+      num[n * 3] += w * res[gi * 3];
+      num[n * 3 + 1] += w * res[gi * 3 + 1];
+      num[n * 3 + 2] += w * res[gi * 3 + 2];
+    });
     for (let n = 0; n < den.length; n++) {
       if (den[n] === 0) continue;
       for (let c = 0; c < 3; c++) lut[n * 3 + c] += num[n * 3 + c] / (den[n] + KERNEL_FLOOR);

@@ -180,9 +180,13 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       const direct = (sl - al) ** 2 + (sa - aa) ** 2 + (sb - ab) ** 2;
       if (direct < bound && !settings.everyPixel) continue;
       // ΔE00 is at most 1.4 × ΔE*ab, and the best match is no farther than the pixel itself: where even the
-      // direct difference cannot clear the smallest edge allowance, no search can flag the pixel.
+      // direct difference cannot clear the pixel's allowance, no search can flag it. A pixel counts when ΔE00
+      // less the edge allowance reaches the pixel level, or, near type on a light ground, when ΔE00 less the
+      // structural allowance reaches the profile's level.
       const contrast = contrastOf[pix];
-      const floor = low + EDGE_ALLOWANCE_STRUCTURAL * contrast;
+      const nearType = art.lightGround[pix] === 1 && contrast >= STRUCTURAL_MIN_CONTRAST;
+      const edgeFloor = low + EDGE_ALLOWANCE * contrast;
+      const floor = nearType ? Math.min(edgeFloor, peak + EDGE_ALLOWANCE_STRUCTURAL * contrast) : edgeFloor;
       if (DE00_OVER_DEAB * DE00_OVER_DEAB * direct < floor * floor && !settings.everyPixel) continue;
       const x0 = Math.max(0, x - r), x1 = Math.min(width - 1, x + r);
       // Scan pixel against artwork neighbours, and artwork pixel against scan neighbours.
@@ -207,7 +211,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       const s = e - (k === PIXEL_COLOUR_SHIFT ? EDGE_ALLOWANCE_COLOUR : EDGE_ALLOWANCE) * contrast;
       // Small print is dark type on a light ground (the ground's lightness dominates around it); in type
       // reversed out of a dark solid the scan's softness fills strokes in, which looks much like a change.
-      const structuralInk = k !== PIXEL_COLOUR_SHIFT && art.lightGround[pix] === 1 && contrast >= STRUCTURAL_MIN_CONTRAST && e - EDGE_ALLOWANCE_STRUCTURAL * contrast >= peak;
+      const structuralInk = k !== PIXEL_COLOUR_SHIFT && nearType && e - EDGE_ALLOWANCE_STRUCTURAL * contrast >= peak;
       if (structuralInk) structural[i] = k;
       if (s < low && !structuralInk && !settings.everyPixel) continue;
       deltaE[i] = e;

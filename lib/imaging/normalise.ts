@@ -3,7 +3,7 @@
 // suppress noise, halftone screen and moiré with a low-pass sized in millimetres. The model itself lives in
 // colour-model.ts; the pairs it is fitted on in samples.ts.
 import sharp from "sharp";
-import { deltaE00, linearToSrgb, srgbToLab, srgbToLinear } from "./colour";
+import { deltaE00, srgbToLab } from "./colour";
 import { evaluateModel, fitColourModel, identityModel, type ColourModel } from "./colour-model";
 import type { AffineMap, PxRect } from "./raster";
 import { sampleFlatPairs, type SamplePairs } from "./samples";
@@ -26,38 +26,6 @@ export function lowPassSigmaPx(dpi: number): number {
 export async function lowPass(rgba: Uint8Array, width: number, height: number, sigmaPx: number): Promise<Uint8Array> {
   const out = await sharp(rgba, { raw: { width, height, channels: 4 } }).blur(Math.max(0.3, sigmaPx)).raw().toBuffer();
   return new Uint8Array(out.buffer, out.byteOffset, out.length);
-}
-
-const TO_LINEAR16 = Uint16Array.from({ length: 256 }, (_, i) => Math.round(srgbToLinear(i / 255) * 65535));
-const FROM_LINEAR16 = Uint8Array.from({ length: 65536 }, (_, i) => Math.round(linearToSrgb(i / 65535) * 255));
-
-/**
- * A Gaussian blur in linear light (16 bits a channel), as a scanner's optics blend light: applied to the
- * sharp artwork it stands for the scanner's own blur. The kernel is kept down to 0.05 of its peak so that a
- * σ under a pixel still blurs. Returns 8-bit sRGB RGBA with alpha 255.
- */
-export async function opticalBlur(rgba: Uint8Array, width: number, height: number, sigmaPx: number): Promise<Uint8Array> {
-  const n = width * height;
-  const linear = new Uint16Array(n * 3);
-  for (let i = 0, p = 0; i < n; i++, p += 4) {
-    linear[i * 3] = TO_LINEAR16[rgba[p]];
-    linear[i * 3 + 1] = TO_LINEAR16[rgba[p + 1]];
-    linear[i * 3 + 2] = TO_LINEAR16[rgba[p + 2]];
-  }
-  const out = await sharp(linear, { raw: { width, height, channels: 3 } })
-    .blur({ sigma: Math.max(0.3, sigmaPx), minAmplitude: 0.05 })
-    .toColourspace("rgb16")
-    .raw({ depth: "ushort" })
-    .toBuffer();
-  const blurred = new Uint16Array(out.buffer, out.byteOffset, out.length / 2);
-  const result = new Uint8Array(n * 4);
-  for (let i = 0, p = 0, q = 0; i < n; i++, p += 4, q += 3) {
-    result[p] = FROM_LINEAR16[blurred[q]];
-    result[p + 1] = FROM_LINEAR16[blurred[q + 1]];
-    result[p + 2] = FROM_LINEAR16[blurred[q + 2]];
-    result[p + 3] = 255;
-  }
-  return result;
 }
 
 export interface NormalisationFit {

@@ -6,7 +6,8 @@
 // (a B1 sheet at 300 dpi is ~98 megapixels) are prepared band by band for each sheet instead, so memory stays
 // bounded. Never shared between threads.
 import { rgbaToLab } from "./colour";
-import { lowPass, opticalBlur } from "./normalise";
+import { lowPass } from "./normalise";
+import { opticalBlur } from "./optics";
 import { cropRgba, type PxRect } from "./raster";
 import type { RgbaImage } from "./types";
 
@@ -60,7 +61,7 @@ export async function preparedRect(art: RgbaImage, rect: PxRect, w: ContrastWind
 
 async function prepare(art: RgbaImage, rect: PxRect, w: ContrastWindows): Promise<PreparedRect> {
   const rgba = cropRgba(art.data, art.width, rect);
-  const seen = w.opticalBlurPx > 0 ? await opticalBlur(rgba, rect.w, rect.h, w.opticalBlurPx) : rgba;
+  const seen = w.opticalBlurPx > 0 ? opticalBlur(rgba, rect.w, rect.h, w.opticalBlurPx) : rgba;
   return prepareLowPassed(await lowPass(seen, rect.w, rect.h, w.sigmaPx), rect, w);
 }
 
@@ -128,14 +129,9 @@ function localContrast(lab: Float32Array, w: number, h: number, k: number, out: 
       lo[c].set(lineLo.subarray(0, w), y * w);
       hi[c].set(lineHi.subarray(0, w), y * w);
     }
-    const colLo = new Float32Array(h), colHi = new Float32Array(h);
-    for (let x = 0; x < w; x++) {
-      for (let y = 0; y < h; y++) { colLo[y] = lo[c][y * w + x]; colHi[y] = hi[c][y * w + x]; }
-      slidingExtent(colLo, h, k, lineLo, null);
-      for (let y = 0; y < h; y++) lo[c][y * w + x] = lineLo[y];
-      slidingExtent(colHi, h, k, null, lineHi);
-      for (let y = 0; y < h; y++) hi[c][y * w + x] = lineHi[y];
-    }
+    // Columns row by row (a column at a time would stride through memory).
+    verticalExtent(lo[c], w, h, k, false);
+    verticalExtent(hi[c], w, h, k, true);
   }
   for (let i = 0; i < n; i++) {
     const dl = hi[0][i] - lo[0][i], da = hi[1][i] - lo[1][i], db = hi[2][i] - lo[2][i];
@@ -145,18 +141,82 @@ function localContrast(lab: Float32Array, w: number, h: number, k: number, out: 
   if (lightGround) lightGroundOf(lab, w, h, k, lo[0], hi[0], lightGround);
 }
 
-/** Running minimum and maximum of `src` over [i − k, i + k], clipped at the ends (k is a few pixels). */
+/**
+ * Running minimum and maximum of `src` over [i − k, i + k], clipped at the ends: van Herk's and Gil & Werman's
+ * method (blocks of 2k + 1, running extremes forward and backward inside each; three comparisons a value
+ * whatever k), with the clipped ends done directly. M. van Herk, Pattern Recognition Letters 13(7), 1992;
+ * J. Gil & M. Werman, IEEE TPAMI 15(5), 1993 (cited from memory).
+ */
 function slidingExtent(src: Float32Array, n: number, k: number, min: Float32Array | null, max: Float32Array | null): void {
+  const size = 2 * k + 1;
+  if (extentScratch.length < 4 * n) extentScratch = new Float32Array(4 * n);
+  const gMin = extentScratch.subarray(0, n), gMax = extentScratch.subarray(n, 2 * n);
+  const hMin = extentScratch.subarray(2 * n, 3 * n), hMax = extentScratch.subarray(3 * n, 4 * n);
+  for (let i = 0, inBlock = 0; i < n; i++, inBlock = inBlock === size - 1 ? 0 : inBlock + 1) {
+    const v = src[i];
+    if (inBlock === 0) { gMin[i] = v; gMax[i] = v; }
+    else { gMin[i] = v < gMin[i - 1] ? v : gMin[i - 1]; gMax[i] = v > gMax[i - 1] ? v : gMax[i - 1]; }
+  }
+  for (let i = n - 1, inBlock = (n - 1) % size; i >= 0; i--, inBlock = inBlock === 0 ? size - 1 : inBlock - 1) {
+    const v = src[i];
+    if (i === n - 1 || inBlock === size - 1) { hMin[i] = v; hMax[i] = v; }
+    else { hMin[i] = v < hMin[i + 1] ? v : hMin[i + 1]; hMax[i] = v > hMax[i + 1] ? v : hMax[i + 1]; }
+  }
   for (let i = 0; i < n; i++) {
-    const a = i - k < 0 ? 0 : i - k, b = i + k >= n ? n - 1 : i + k;
-    let mn = src[a], mx = src[a];
-    for (let j = a + 1; j <= b; j++) {
-      const v = src[j];
-      if (v < mn) mn = v;
-      if (v > mx) mx = v;
+    const a = i - k, b = i + k;
+    let mn: number, mx: number;
+    if (a >= 0 && b < n) {
+      mn = hMin[a] < gMin[b] ? hMin[a] : gMin[b];
+      mx = hMax[a] > gMax[b] ? hMax[a] : gMax[b];
+    } else {
+      const from = a < 0 ? 0 : a, to = b >= n ? n - 1 : b;
+      mn = src[from]; mx = src[from];
+      for (let j = from + 1; j <= to; j++) { const v = src[j]; if (v < mn) mn = v; if (v > mx) mx = v; }
     }
     if (min) min[i] = mn;
     if (max) max[i] = mx;
+  }
+}
+// Scratch of the running extremes, kept between calls: a page's planes are tens of megabytes each, and fresh
+// ones for every pass cost more in page faults than the passes themselves. Per thread; freed with the thread.
+let extentScratch = new Float32Array(0);
+let verticalScratch = new Float32Array(0);
+
+/**
+ * In place: the minimum (or, on the negated plane, the maximum) of each pixel over rows [y − k, y + k],
+ * clipped; van Herk / Gil–Werman by whole rows, so memory is read in order.
+ */
+function verticalExtent(plane: Float32Array, w: number, h: number, k: number, max: boolean): void {
+  if (max) for (let i = 0; i < plane.length; i++) plane[i] = -plane[i];
+  verticalMinimum(plane, w, h, k);
+  if (max) for (let i = 0; i < plane.length; i++) plane[i] = -plane[i];
+}
+
+function verticalMinimum(plane: Float32Array, w: number, h: number, k: number): void {
+  const size = 2 * k + 1, n = w * h;
+  if (verticalScratch.length < 3 * n) verticalScratch = new Float32Array(3 * n);
+  const src = verticalScratch.subarray(0, n), g = verticalScratch.subarray(n, 2 * n), back = verticalScratch.subarray(2 * n, 3 * n);
+  src.set(plane);
+  for (let y = 0; y < h; y++) {
+    const o = y * w;
+    if (y % size === 0) g.set(src.subarray(o, o + w), o);
+    else for (let x = o; x < o + w; x++) { const v = src[x], p = g[x - w]; g[x] = v < p ? v : p; }
+  }
+  for (let y = h - 1; y >= 0; y--) {
+    const o = y * w;
+    if (y === h - 1 || (y + 1) % size === 0) back.set(src.subarray(o, o + w), o);
+    else for (let x = o; x < o + w; x++) { const v = src[x], p = back[x + w]; back[x] = v < p ? v : p; }
+  }
+  for (let y = 0; y < h; y++) {
+    const a = y - k, b = y + k, o = y * w;
+    if (a >= 0 && b < h) {
+      for (let x = 0; x < w; x++) { const u = back[a * w + x], v = g[b * w + x]; plane[o + x] = u < v ? u : v; }
+      continue;
+    }
+    // Clipped at the top or bottom: directly over the rows that exist.
+    const from = Math.max(0, a), to = Math.min(h - 1, b);
+    plane.set(src.subarray(from * w, from * w + w), o);
+    for (let yy = from + 1; yy <= to; yy++) for (let x = 0; x < w; x++) { const v = src[yy * w + x]; if (v < plane[o + x]) plane[o + x] = v; }
   }
 }
 
@@ -172,16 +232,17 @@ function lightGroundOf(lab: Float32Array, w: number, h: number, k: number, lMin:
       if (x - k >= 0) s -= lab[(y * w + x - k) * 3];
     }
   }
-  for (let x = 0; x < w; x++) {
-    const cols = Math.min(w - 1, x + k) - Math.max(0, x - k) + 1;
-    let s = 0;
-    for (let y = 0; y <= Math.min(k, h - 1); y++) s += rows[y * w + x];
-    for (let y = 0; y < h; y++) {
-      const count = cols * (Math.min(h - 1, y + k) - Math.max(0, y - k) + 1);
+  // Column sums of the row sums, row by row: the window's sum moves down one row at a time.
+  const sum = new Float64Array(w);
+  for (let y = 0; y <= Math.min(k, h - 1); y++) for (let x = 0; x < w; x++) sum[x] += rows[y * w + x];
+  for (let y = 0; y < h; y++) {
+    const height = Math.min(h - 1, y + k) - Math.max(0, y - k) + 1;
+    for (let x = 0; x < w; x++) {
+      const count = (Math.min(w - 1, x + k) - Math.max(0, x - k) + 1) * height;
       const i = y * w + x;
-      out[i] = s > count * 0.5 * (lMin[i] + lMax[i]) ? 1 : 0;
-      if (y + k + 1 < h) s += rows[(y + k + 1) * w + x];
-      if (y - k >= 0) s -= rows[(y - k) * w + x];
+      out[i] = sum[x] > count * 0.5 * (lMin[i] + lMax[i]) ? 1 : 0;
     }
+    if (y + k + 1 < h) for (let x = 0; x < w; x++) sum[x] += rows[(y + k + 1) * w + x];
+    if (y - k >= 0) for (let x = 0; x < w; x++) sum[x] -= rows[(y - k) * w + x];
   }
 }

@@ -1,5 +1,6 @@
 // Pairs of (artwork colour, scan colour) for the colour fit, read straight through the artwork → scan affine so
-// that no full-size warped copy of the scan is needed. "Flat" pairs lie where the artwork is uniform over the
+// that no full-size warped copy of the scan is needed. The artwork's side of the grid (positions, window means,
+// flatness) is the same for every sheet and is kept per artwork and thread. "Flat" pairs lie where the artwork is uniform over the
 // whole radius of the low-pass and registration tolerance, so misregistration cannot bias them; "all" pairs
 // (window means of both) feed the percentile anchors of the tone curves.
 import { linearToSrgb255Fast, SRGB8_TO_LINEAR } from "./colour";
@@ -19,6 +20,63 @@ const TARGET_GRID_POINTS = 60_000;
 /** A flat artwork window varies by at most this many 8-bit codes per channel. */
 const FLAT_TOLERANCE = 2;
 
+/** The artwork's side of the sampling grid: positions, window means and flatness. Artwork-only, so kept per artwork. */
+interface ArtworkGrid {
+  x: Int32Array;
+  y: Int32Array;
+  /** Window mean (3 a point) and, for flat points, the pixel itself (3 a point). */
+  mean: Float32Array;
+  pixel: Float32Array;
+  flat: Uint8Array;
+  count: number;
+}
+
+const grids = new WeakMap<ArrayBufferLike, Map<string, ArtworkGrid>>();
+
+function artworkGrid(artwork: RgbaImage, radiusPx: number): ArtworkGrid {
+  const key = `${artwork.data.byteOffset}:${artwork.width}x${artwork.height}:${radiusPx}`;
+  let byKey = grids.get(artwork.data.buffer);
+  if (!byKey) grids.set(artwork.data.buffer, (byKey = new Map()));
+  let grid = byKey.get(key);
+  if (!grid) byKey.set(key, (grid = makeGrid(artwork, radiusPx)));
+  return grid;
+}
+
+function makeGrid(artwork: RgbaImage, radiusPx: number): ArtworkGrid {
+  const r = Math.max(1, Math.ceil(radiusPx));
+  const aw = artwork.width, ah = artwork.height;
+  const stride = Math.max(2, Math.ceil(Math.sqrt((aw * ah) / TARGET_GRID_POINTS)));
+  const kArt = Math.max(1, Math.round(radiusPx / 3));
+  const cap = Math.ceil(aw / stride + 1) * Math.ceil(ah / stride + 1);
+  const grid: ArtworkGrid = { x: new Int32Array(cap), y: new Int32Array(cap), mean: new Float32Array(cap * 3), pixel: new Float32Array(cap * 3), flat: new Uint8Array(cap), count: 0 };
+  const art = artwork.data;
+  for (let y = r; y < ah - r; y += stride) {
+    for (let x = r; x < aw - r; x += stride) {
+      const i = grid.count++;
+      grid.x[i] = x;
+      grid.y[i] = y;
+      windowMean(art, aw, x, y, kArt, grid.mean, i * 3);
+      const p = (y * aw + x) * 4;
+      grid.pixel[i * 3] = art[p]; grid.pixel[i * 3 + 1] = art[p + 1]; grid.pixel[i * 3 + 2] = art[p + 2];
+      grid.flat[i] = isFlat(art, aw, x, y, r) ? 1 : 0;
+    }
+  }
+  return grid;
+}
+
+/** Window mean in linear light (then encoded again), so a blurred edge averages like the sharp one. */
+function windowMean(data: Uint8Array | Uint8ClampedArray, width: number, cx: number, cy: number, k: number, out: Float32Array, o: number): void {
+  const lin = SRGB8_TO_LINEAR;
+  let s0 = 0, s1 = 0, s2 = 0;
+  for (let yy = cy - k; yy <= cy + k; yy++) {
+    for (let xx = cx - k, p = (yy * width + xx) * 4; xx <= cx + k; xx++, p += 4) {
+      s0 += lin[data[p]]; s1 += lin[data[p + 1]]; s2 += lin[data[p + 2]];
+    }
+  }
+  const n = (2 * k + 1) * (2 * k + 1);
+  out[o] = linearToSrgb255Fast(s0 / n); out[o + 1] = linearToSrgb255Fast(s1 / n); out[o + 2] = linearToSrgb255Fast(s2 / n);
+}
+
 export function sampleFlatPairs(
   artwork: RgbaImage,
   scan: RgbaImage,
@@ -29,44 +87,27 @@ export function sampleFlatPairs(
   const r = Math.max(1, Math.ceil(radiusPx));
   const x0 = inside.x + r, y0 = inside.y + r;
   const x1 = inside.x + inside.w - r, y1 = inside.y + inside.h - r;
-  const empty = { flatArt: new Float32Array(0), flatScan: new Float32Array(0), flatCount: 0, allArt: new Float32Array(0), allScan: new Float32Array(0), allCount: 0 };
-  if (x1 <= x0 || y1 <= y0) return empty;
-  const stride = Math.max(2, Math.ceil(Math.sqrt(((x1 - x0) * (y1 - y0)) / TARGET_GRID_POINTS)));
-  const cap = Math.ceil((x1 - x0) / stride + 1) * Math.ceil((y1 - y0) / stride + 1);
+  const grid = artworkGrid(artwork, radiusPx);
+  const cap = grid.count;
   const flatArt = new Float32Array(cap * 3), flatScan = new Float32Array(cap * 3);
   const allArt = new Float32Array(cap * 3), allScan = new Float32Array(cap * 3);
   let flatCount = 0, allCount = 0;
-  const art = artwork.data, aw = artwork.width;
   const sd = scan.data, sw = scan.width, sh = scan.height;
   const scale = Math.sqrt(Math.abs(m[0] * m[4] - m[1] * m[3]));
-  const kArt = Math.max(1, Math.round(radiusPx / 3));
-  const kScan = Math.max(1, Math.round(kArt * scale));
-  // Window means in linear light (then encoded again), so a blurred edge averages like the sharp one.
-  const lin = SRGB8_TO_LINEAR;
-  const mean = (data: Uint8Array | Uint8ClampedArray, width: number, cx: number, cy: number, k: number, out: Float32Array, o: number) => {
-    let s0 = 0, s1 = 0, s2 = 0;
-    for (let yy = cy - k; yy <= cy + k; yy++) {
-      for (let xx = cx - k, p = (yy * width + xx) * 4; xx <= cx + k; xx++, p += 4) {
-        s0 += lin[data[p]]; s1 += lin[data[p + 1]]; s2 += lin[data[p + 2]];
-      }
-    }
-    const n = (2 * k + 1) * (2 * k + 1);
-    out[o] = linearToSrgb255Fast(s0 / n); out[o + 1] = linearToSrgb255Fast(s1 / n); out[o + 2] = linearToSrgb255Fast(s2 / n);
-  };
-  for (let y = y0; y < y1; y += stride) {
-    for (let x = x0; x < x1; x += stride) {
-      const xs = Math.round(m[0] * x + m[1] * y + m[2]);
-      const ys = Math.round(m[3] * x + m[4] * y + m[5]);
-      if (xs - kScan < 0 || ys - kScan < 0 || xs + kScan >= sw || ys + kScan >= sh) continue;
-      mean(art, aw, x, y, kArt, allArt, allCount * 3);
-      mean(sd, sw, xs, ys, kScan, allScan, allCount * 3);
-      allCount++;
-      if (!isFlat(art, aw, x, y, r)) continue;
-      const p = (y * aw + x) * 4;
-      flatArt[flatCount * 3] = art[p]; flatArt[flatCount * 3 + 1] = art[p + 1]; flatArt[flatCount * 3 + 2] = art[p + 2];
-      flatScan.set(allScan.subarray((allCount - 1) * 3, allCount * 3), flatCount * 3);
-      flatCount++;
-    }
+  const kScan = Math.max(1, Math.round(Math.max(1, Math.round(radiusPx / 3)) * scale));
+  for (let i = 0; i < grid.count; i++) {
+    const x = grid.x[i], y = grid.y[i];
+    if (x < x0 || y < y0 || x >= x1 || y >= y1) continue;
+    const xs = Math.round(m[0] * x + m[1] * y + m[2]);
+    const ys = Math.round(m[3] * x + m[4] * y + m[5]);
+    if (xs - kScan < 0 || ys - kScan < 0 || xs + kScan >= sw || ys + kScan >= sh) continue;
+    allArt.set(grid.mean.subarray(i * 3, i * 3 + 3), allCount * 3);
+    windowMean(sd, sw, xs, ys, kScan, allScan, allCount * 3);
+    allCount++;
+    if (grid.flat[i] === 0) continue;
+    flatArt.set(grid.pixel.subarray(i * 3, i * 3 + 3), flatCount * 3);
+    flatScan.set(allScan.subarray((allCount - 1) * 3, allCount * 3), flatCount * 3);
+    flatCount++;
   }
   return { flatArt, flatScan, flatCount, allArt, allScan, allCount };
 }
