@@ -1,7 +1,8 @@
 // ALIGN: register a scan of a press sheet to its artwork raster, coarse to fine.
 //
-//  1. coarse placement (align-coarse.ts): whole-page correlation on ~4 000-pixel grey levels over the four
-//     quarter turns × ±6° (recovers ±7°) — robust to repeated ups, where feature matching locks an up off;
+//  1. coarse placement (align-coarse.ts): whole-page correlation over the four quarter turns × ±6° (recovers
+//     ±7°), swept on ~1 000-pixel grey levels and placed on ~4 000-pixel ones — robust to repeated ups, where
+//     feature matching locks an up off;
 //  2. affine ECC (OpenCV findTransformECC; G. D. Evangelidis & E. Z. Psarakis, "Parametric image alignment
 //     using enhanced correlation coefficient maximization", IEEE TPAMI 30(10), 2008 — cited from memory) on
 //     that level and on one twice as fine. ECC is exact sub-pixel and its correlation refuses a plainly wrong artwork, but costs ~80 ns per
@@ -53,7 +54,7 @@ const MIN_AGREEMENT = 0.5;
 const AMBIGUITY_GAP = 0.025;
 /** Grey-level standard deviation (0–255) under which the scan shows nothing printed. */
 const MIN_SCAN_CONTRAST = 2;
-/** Pixels of the coarse level (the rotation sweep, ~1 ms a candidate). */
+/** Pixels of the coarse level (the placement; the rotation sweep runs on a level with a quarter as many). */
 const COARSE_PIXELS = 4_000;
 /** Level pixels kept clear of the page edge in ECC. */
 const EDGE = 3;
@@ -85,7 +86,8 @@ export async function alignScan(artwork: ArtworkRaster, scan: ScanImage, opts: A
   lap("levels");
 
   const ratio = scan.dpi / scanC.k / (artwork.dpi / artC.k);
-  const coarse = coarsePlacement(cv, artC, scanC, ratio);
+  const sweep = { art: greyLevel(artwork, 2 * artC.k, true), scan: halve(scanC) };
+  const coarse = coarsePlacement(cv, artC, scanC, ratio, sweep);
   let map = levelMapToFull(coarse.map, artC.k, scanC.k);
   lap("coarse");
 
