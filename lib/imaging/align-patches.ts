@@ -7,7 +7,8 @@
 // cannot slide along it), each located in the scan resampled through the
 // current map by matchTemplate within a small search radius and a parabolic sub-pixel peak, and an affine map
 // is fitted through all of them, dropping outliers (a defect or the sheet number under a window). Two passes:
-// the second starts from the first fit, so the offsets are near zero, where the parabola's bias vanishes.
+// the second starts from the first fit, so the offsets are near zero, where the parabola's bias vanishes; the
+// first needs only half of the sites for that.
 // The search radius is a millimetre, far below the pitch of repeated ups, so no window can lock onto the wrong up.
 // The same measurement on a denser grid, relative to the final affine, gives the optional local field
 // (align-field.ts).
@@ -62,16 +63,25 @@ export function refineOnPatches(cv: OpenCv, artwork: Image, scan: Image, map: Af
   // Share of the structured sites that found their patch where the fit says (score-weighted): near 1 for a
   // scan of this artwork, low for a similar-looking design, whose patches find nothing or disagree.
   let agreement: number | null = null;
-  if (cover) {
-    const sites = chooseSites(art, cover, GRID, GRID).at;
-    for (const radiusMm of [1.2, 0.3]) {
-      const radius = Math.min(MAX_RADIUS, Math.max(2, Math.ceil((radiusMm * artwork.dpi) / kF / 25.4)));
-      const found = measure(cv, art, scan, map, toFull, sites, radius);
-      const fit = sites.length >= MIN_SITES ? robustFit(found, map) : null;
-      agreement = sites.length >= MIN_SITES ? (fit ? fit.inliers.reduce((a, m) => a + m.score, 0) / sites.length : 0) : null;
-      if (!fit) break;
-      map = fit.map;
-      residualPx = fit.rms;
+  const radius = (mm: number) => Math.min(MAX_RADIUS, Math.max(2, Math.ceil((mm * artwork.dpi) / kF / 25.4)));
+  const chosen = cover ? chooseSites(art, cover, GRID, GRID) : null;
+  if (chosen && chosen.at.length >= MIN_SITES) {
+    const sites = chosen.at;
+    // The first pass only has to bring the offsets near zero for the second, which measures every site: half
+    // of them (a checkerboard of the grid cells, so they still span the covered area) do that, and all of them
+    // only when the half cannot be fitted.
+    const half = sites.filter((_, s) => ((chosen.cell[s] % GRID) + Math.floor(chosen.cell[s] / GRID)) % 2 === 0);
+    const first = (half.length >= 2 * MIN_SITES && robustFit(measure(cv, art, scan, map, toFull, half, radius(1.2)), map)) || robustFit(measure(cv, art, scan, map, toFull, sites, radius(1.2)), map);
+    agreement = 0;
+    if (first) {
+      map = first.map;
+      residualPx = first.rms;
+      const fit = robustFit(measure(cv, art, scan, map, toFull, sites, radius(0.3)), map);
+      if (fit) {
+        agreement = fit.inliers.reduce((a, m) => a + m.score, 0) / sites.length;
+        map = fit.map;
+        residualPx = fit.rms;
+      }
     }
   }
   // The fine level and covered area go back with the result for the optional local field (align-field.ts).

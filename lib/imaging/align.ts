@@ -92,9 +92,12 @@ export async function alignScan(artwork: ArtworkRaster, scan: ScanImage, opts: A
   lap("coarse");
 
   // ECC on the coarse level (cheap, widens the basin), then on the twice finer one; the patches do the rest.
+  // The finer ECC gets few iterations: at ~1 ms each there it is the dearest, and started from the coarse fit
+  // its third iteration leaves the patches' first offsets as small as its thirtieth did (measured: medians
+  // ≤ 0.37 px at 100 dpi over all quarter turns ±7°); without it they were ~4 px, near the patches' radius.
   const nominal = scan.dpi / artwork.dpi;
   map = ecc(cv, artC, scanC, map, nominal, 50).map;
-  const { map: eccMap, rho } = ecc(cv, artE, scanE, map, nominal, 30);
+  const { map: eccMap, rho } = ecc(cv, artE, scanE, map, nominal, 3);
   map = eccMap;
   lap("ecc");
   if (!(rho >= MIN_CORRELATION)) throw mismatch();

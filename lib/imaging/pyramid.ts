@@ -91,23 +91,26 @@ function reduce(img: RgbaImage, k: number): GreyLevel {
   const h = Math.max(1, Math.floor(img.height / k1));
   const out = new Float32Array(w * h);
   const src = img.data;
-  const taps = blockTaps(k1);
-  const norm = 1 / (taps.length * taps.length);
-  const rowSum = new Float32Array(w);
+  const taps = blockTaps(k1), nt = taps.length;
+  const norm = 1 / (nt * nt);
+  // Byte offsets of the taps along a row; each band summed as integers and weighted once per block row (luma
+  // is linear, so the mean of the luma is the luma of the means).
+  const dxs = Int32Array.from(taps, (t) => t * 4);
   for (let j = 0; j < h; j++) {
-    rowSum.fill(0);
-    for (const dy of taps) {
-      const row = (j * k1 + dy) * img.width * 4;
-      for (let i = 0; i < w; i++) {
-        let s = 0;
-        for (const dx of taps) {
-          const p = row + (i * k1 + dx) * 4;
-          s += 0.299 * src[p] + 0.587 * src[p + 1] + 0.114 * src[p + 2];
+    for (let t = 0; t < nt; t++) {
+      const row = (j * k1 + taps[t]) * img.width * 4;
+      for (let i = 0, p0 = row; i < w; i++, p0 += k1 * 4) {
+        let r = 0, g = 0, b = 0;
+        for (let d = 0; d < nt; d++) {
+          const p = p0 + dxs[d];
+          r += src[p];
+          g += src[p + 1];
+          b += src[p + 2];
         }
-        rowSum[i] += s;
+        out[j * w + i] += 0.299 * r + 0.587 * g + 0.114 * b;
       }
     }
-    for (let i = 0; i < w; i++) out[j * w + i] = rowSum[i] * norm;
+    for (let i = j * w; i < (j + 1) * w; i++) out[i] *= norm;
   }
   return { width: w, height: h, data: out, k: k1 };
 }
