@@ -93,27 +93,36 @@ function reduce(img: RgbaImage, k: number): GreyLevel {
   const src = img.data;
   const taps = blockTaps(k1), nt = taps.length;
   const norm = 1 / (nt * nt);
-  // Byte offsets of the taps along a row; each band summed as integers and weighted once per block row (luma
-  // is linear, so the mean of the luma is the luma of the means).
-  const dxs = Int32Array.from(taps, (t) => t * 4);
+  // Each pixel is read as one 32-bit word and its bands summed two at a time in 16-bit lanes (R with B, G with
+  // A; 257 taps of 255 still fit a lane); luma is linear, so the block's mean luma is the luma of the band means.
+  const words = nt <= 257 && src.byteOffset % 4 === 0 && LITTLE_ENDIAN ? new Uint32Array(src.buffer, src.byteOffset, img.width * img.height) : null;
   for (let j = 0; j < h; j++) {
     for (let t = 0; t < nt; t++) {
-      const row = (j * k1 + taps[t]) * img.width * 4;
-      for (let i = 0, p0 = row; i < w; i++, p0 += k1 * 4) {
-        let r = 0, g = 0, b = 0;
-        for (let d = 0; d < nt; d++) {
-          const p = p0 + dxs[d];
-          r += src[p];
-          g += src[p + 1];
-          b += src[p + 2];
+      const row = (j * k1 + taps[t]) * img.width;
+      for (let i = 0, p0 = row; i < w; i++, p0 += k1) {
+        let rb = 0, ga = 0;
+        if (words) {
+          for (let d = 0; d < nt; d++) {
+            const v = words[p0 + taps[d]];
+            rb += v & 0xff00ff;
+            ga += (v >>> 8) & 0xff00ff;
+          }
+        } else {
+          for (let d = 0; d < nt; d++) {
+            const p = (p0 + taps[d]) * 4;
+            rb += src[p] + src[p + 2] * 65536;
+            ga += src[p + 1];
+          }
         }
-        out[j * w + i] += 0.299 * r + 0.587 * g + 0.114 * b;
+        out[j * w + i] += 0.299 * (rb & 0xffff) + 0.587 * (ga & 0xffff) + 0.114 * (rb >>> 16);
       }
     }
     for (let i = j * w; i < (j + 1) * w; i++) out[i] *= norm;
   }
   return { width: w, height: h, data: out, k: k1 };
 }
+
+const LITTLE_ENDIAN = new Uint8Array(new Uint32Array([1]).buffer)[0] === 1;
 
 /**
  * Offsets read inside a block: all of them for small blocks; every other one for blocks of 8 and more (a level
