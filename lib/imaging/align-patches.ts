@@ -267,16 +267,22 @@ export function sampleScan(scan: RgbaImage, lm: Affine, x0: number, y0: number, 
   const xMax = sw - 1.001 - gx0, yMax = sh - 1.001 - gy0;
   // Away from the scan's edges (nearly always) no sample needs clamping: step along each row instead.
   const inside = bx0 > 0 && by0 > 0 && bx1 < sw - 1.001 && by1 < sh - 1.001;
-  if (inside && n === 1) {
-    for (let v = 0; v < win; v++) {
-      let xs = a * x0 + b * (y0 + v) + c, ys = e * x0 + f * (y0 + v) + o;
-      for (let u = 0, k = v * win; u < win; u++, k++, xs += a, ys += e) {
-        const xi = xs | 0, yi = ys | 0, fx = xs - xi, fy = ys - yi;
-        const p = yi * gw + xi, q = p + gw;
-        const top = g[p] + fx * (g[p + 1] - g[p]), bottom = g[q] + fx * (g[q + 1] - g[q]);
-        out[k] = top + fy * (bottom - top);
+  if (inside) {
+    for (let j = 0; j < n; j++) {
+      for (let i = 0; i < n; i++) {
+        const du = (i + 0.5) / n - 0.5, dv = (j + 0.5) / n - 0.5, first = i === 0 && j === 0;
+        for (let v = 0; v < win; v++) {
+          let xs = a * (x0 + du) + b * (y0 + v + dv) + c, ys = e * (x0 + du) + f * (y0 + v + dv) + o;
+          for (let u = 0, k = v * win; u < win; u++, k++, xs += a, ys += e) {
+            const xi = xs | 0, yi = ys | 0, fx = xs - xi, fy = ys - yi;
+            const p = yi * gw + xi, q = p + gw;
+            const top = g[p] + fx * (g[p + 1] - g[p]), bottom = g[q] + fx * (g[q + 1] - g[q]);
+            out[k] = first ? top + fy * (bottom - top) : out[k] + top + fy * (bottom - top);
+          }
+        }
       }
     }
+    if (n > 1) for (let k = 0; k < win * win; k++) out[k] *= inv;
     return;
   }
   for (let j = 0; j < n; j++) {
