@@ -40,8 +40,8 @@ export interface AlignResult {
 /**
  * Refusal of a wrong artwork, in two steps. Below this ECC correlation on the ~16 000-pixel level the scan is
  * plainly something else (measured on simulated sheets: ≥ 0.99 for the right one; 0.42 for another imposition
- * when its fit got that far — since the two-level sweep its coarse fit runs off and is refused there). A design of the
- * same brand in another layout still reached 0.78 (and a sheet of another size 0.84) there, so the fine
+ * when its fit got that far — since the two-level sweep its coarse fit runs off and is refused there). A design
+ * of the same brand in another layout still reached 0.78 (and a sheet of another size 0.84) there, so the fine
  * patches decide too: the score-weighted share of structured sites that find their patch where the fit
  * says was 0.17–0.23 for those, 0.80–0.97 for right scans with halftone, blur, noise and JPEG.
  */
