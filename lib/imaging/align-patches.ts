@@ -71,7 +71,8 @@ export function refineOnPatches(cv: OpenCv, artwork: Image, scan: Image, map: Af
     // of them (a checkerboard of the grid cells, so they still span the covered area) do that, and all of them
     // only when the half cannot be fitted.
     const half = sites.filter((_, s) => ((chosen.cell[s] % GRID) + Math.floor(chosen.cell[s] / GRID)) % 2 === 0);
-    const first = (half.length >= 2 * MIN_SITES && robustFit(measure(cv, art, scan, map, toFull, half, radius(1.2)), map)) || robustFit(measure(cv, art, scan, map, toFull, sites, radius(1.2)), map);
+    const firstPass = (use: [number, number][]) => robustFit(measure(cv, art, scan, map, toFull, use, radius(1.2)), map);
+    const first = (half.length >= 2 * MIN_SITES ? firstPass(half) : null) ?? firstPass(sites);
     agreement = 0;
     if (first) {
       map = first.map;
@@ -245,7 +246,7 @@ export function measure(
  * bilinear sub-samples per pixel. The luma of the scan pixels under the window is worked out once into `grey`
  * first (each is read by about four sub-samples otherwise).
  */
-export function sampleScan(scan: RgbaImage, lm: Affine, x0: number, y0: number, win: number, n: number, out: Float32Array, grey: Scratch) {
+function sampleScan(scan: RgbaImage, lm: Affine, x0: number, y0: number, win: number, n: number, out: Float32Array, grey: Scratch) {
   const d = scan.data, sw = scan.width, sh = scan.height;
   const clampX = (v: number) => Math.min(Math.max(v, 0), sw - 1.001), clampY = (v: number) => Math.min(Math.max(v, 0), sh - 1.001);
   // Scan pixels the window's sub-samples can reach: the bounding box of its corners, clamped as the samples are.
@@ -310,7 +311,7 @@ export function sampleScan(scan: RgbaImage, lm: Affine, x0: number, y0: number, 
 }
 
 /** A reusable Float32Array, grown on demand. */
-export class Scratch {
+class Scratch {
   private a = new Float32Array(0);
   get(n: number): Float32Array {
     if (this.a.length < n) this.a = new Float32Array(n);
