@@ -7,8 +7,7 @@
 // cannot slide along it), each located in the scan resampled through the
 // current map by matchTemplate within a small search radius and a parabolic sub-pixel peak, and an affine map
 // is fitted through all of them, dropping outliers (a defect or the sheet number under a window). Two passes:
-// the second starts from the first fit, so the offsets are near zero, where the parabola's bias vanishes; the
-// first needs only half of the sites for that.
+// the second starts from the first fit, so the offsets are near zero, where the parabola's bias vanishes.
 // The search radius is a millimetre, far below the pitch of repeated ups, so no window can lock onto the wrong up.
 // The same measurement on a denser grid, relative to the final affine, gives the optional local field
 // (align-field.ts).
@@ -67,12 +66,9 @@ export function refineOnPatches(cv: OpenCv, artwork: Image, scan: Image, map: Af
   const chosen = cover ? chooseSites(art, cover, GRID, GRID) : null;
   if (chosen && chosen.at.length >= MIN_SITES) {
     const sites = chosen.at;
-    // The first pass only has to bring the offsets near zero for the second, which measures every site: half
-    // of them (a checkerboard of the grid cells, so they still span the covered area) do that, and all of them
-    // only when the half cannot be fitted.
-    const half = sites.filter((_, s) => ((chosen.cell[s] % GRID) + Math.floor(chosen.cell[s] / GRID)) % 2 === 0);
-    const firstPass = (use: [number, number][]) => robustFit(measure(cv, art, scan, map, toFull, use, radius(1.2)), map);
-    const first = (half.length >= 2 * MIN_SITES ? firstPass(half) : null) ?? firstPass(sites);
+    // Every site in both passes: on the B2 sheet a first pass on half of them (a checkerboard of the cells)
+    // saved 3 ms but left the final map 0.0075 mm out instead of 0.0051 mm (the second pass's start matters).
+    const first = robustFit(measure(cv, art, scan, map, toFull, sites, radius(1.2)), map);
     agreement = 0;
     if (first) {
       map = first.map;
