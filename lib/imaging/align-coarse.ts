@@ -1,6 +1,8 @@
 // COARSE placement of the sheet: which way round it lies on the glass, its angle to within a degree or so and
-// where it is, by whole-page correlation on small grey levels (about 4 000 pixels each) over a sweep of
-// rotations: the four quarter turns × −6° … +6° in 1.5° steps.
+// where it is, by whole-page correlation on small grey levels (about 4 000 pixels each): a sweep of the four
+// quarter turns × −6° … +6° in 3° steps on a level twice coarser still, then the best quarter turn (and any
+// close second) placed again on the 4 000-pixel level by a walk in 1° steps and a parabola (see
+// coarsePlacement).
 //
 // Why whole-page correlation rather than feature matching: a press sheet carries many identical ups, and the
 // ratio test of descriptor matching throws the repeated features away — ORB locked one row of ups off on a
@@ -26,42 +28,82 @@ export interface CoarseResult {
   runnerUp: number;
 }
 
-const ANGLES = [-6, -4.5, -3, -1.5, 0, 1.5, 3, 4.5, 6];
+/** Angles of the sweep, on the level twice coarser, about each quarter turn. */
+const SWEEP = [-6, -3, 0, 3, 6];
 const QUARTERS = [0, 90, 180, 270];
+/** Quarter turns whose sweep score comes within this of the best are placed again on the finer level. */
+const SHORTLIST_GAP = 0.2;
 
-/** `ratio`: scan level pixels per artwork level pixel at nominal size (the resolutions' ratio). */
-export function coarsePlacement(cv: OpenCv, art: GreyLevel, scan: GreyLevel, ratio: number): CoarseResult {
+/**
+ * `ratio`: scan level pixels per artwork level pixel at nominal size (the resolutions' ratio). `sweep`: the
+ * same two images at twice the block size, where the rotation sweep runs.
+ *
+ * Why two levels: one candidate costs about its level's pixel count (warp and matchTemplate), and most of the
+ * sweep only has to tell the quarter turns apart and bracket the angle. On the twice coarser level a 3° step
+ * moves the page's corners no more than a 1.5° step does on the finer one, so 4 × 5 candidates there cost about
+ * what 5 cost here; the finer level then only places the best quarter turn (and any close second) at its
+ * estimated angle and 1° either side, and once more at the parabola's vertex. The score, runner-up and map
+ * returned all come from the finer level.
+ */
+export function coarsePlacement(cv: OpenCv, art: GreyLevel, scan: GreyLevel, ratio: number, sweep: { art: GreyLevel; scan: GreyLevel }): CoarseResult {
+  const quarters = withMats((keep) => {
+    const s = placer(cv, keep, sweep.art, sweep.scan, ratio * (sweep.art.k / art.k) / (sweep.scan.k / scan.k));
+    const found = QUARTERS.map((q) => {
+      const scores = SWEEP.map((a) => s(q + a).score);
+      let i = 0;
+      for (let j = 1; j < scores.length; j++) if (scores[j] > scores[i]) i = j;
+      const off = i > 0 && i < scores.length - 1 ? peak(scores[i - 1], scores[i], scores[i + 1]) : 0;
+      return { angle: q + SWEEP[i] + off * (SWEEP[1] - SWEEP[0]), score: scores[i] };
+    });
+    const top = Math.max(...found.map((f) => f.score));
+    return found.filter((f) => f.score >= top - SHORTLIST_GAP).sort((a, b) => b.score - a.score);
+  });
   return withMats((keep) => {
-    const artMat = keep(cv.matFromArray(art.height, art.width, cv.CV_32F, art.data));
-    const scanMat = keep(cv.matFromArray(scan.height, scan.width, cv.CV_32F, scan.data));
-    // Whatever lies outside the sheet is lid: fill and pad with the scan's border colour, so that at the right
-    // placement the lid in the scan meets lid-coloured padding (a dark lid then marks the sheet edge instead
-    // of fighting the correlation).
-    const lid = borderMean(scan);
-    const tryAngle = (deg: number) => candidate(cv, keep, artMat, scanMat, art, scan, lid, deg, ratio);
-
+    const place = placer(cv, keep, art, scan, ratio);
     let best: CoarseResult | null = null;
-    let bestScores: number[] = [];
-    for (const q of QUARTERS) {
-      const results = ANGLES.map((a) => tryAngle(q + a));
-      const top = results.reduce((m, r) => (r.score > m.score ? r : m));
-      if (!best || top.score > best.score) {
-        best = top;
-        bestScores = results.map((r) => r.score);
+    for (const { angle } of quarters) {
+      // The sweep's estimate can be a degree or more out (a 3° step over a narrow peak): step on from it until
+      // the best angle has a lower one either side, then refine with a parabola through the three and place
+      // once more at its vertex.
+      const at = new Map<number, CoarseResult>();
+      const get = (i: number) => at.get(i) ?? at.set(i, place(angle + i * STEP)).get(i)!;
+      // A close second from the sweep that places far below the best here cannot win: no walk for it.
+      if (best && get(0).score < best.score - HOPELESS) continue;
+      let i = 0;
+      for (let steps = 0; steps < MAX_STEPS; steps++) {
+        const dir = get(i + 1).score > get(i).score ? 1 : get(i - 1).score > get(i).score ? -1 : 0;
+        if (dir === 0) break;
+        i += dir;
       }
-    }
-    // Refine the angle with a parabola through the best sample and its neighbours, then place it again.
-    const quarter = Math.round(best!.angleDeg / 90) * 90;
-    const i = ANGLES.indexOf(Math.round((best!.angleDeg - quarter) * 2) / 2);
-    if (i > 0 && i < ANGLES.length - 1) {
-      const off = peak(bestScores[i - 1], bestScores[i], bestScores[i + 1]);
+      let pick = get(i);
+      const off = peak(get(i - 1).score, pick.score, get(i + 1).score);
       if (off !== 0) {
-        const refined = tryAngle(quarter + ANGLES[i] + off * (ANGLES[1] - ANGLES[0]));
-        if (refined.score >= best!.score - 0.02) best = refined;
+        const refined = place(angle + (i + off) * STEP);
+        if (refined.score >= pick.score - 0.02) pick = refined;
       }
+      if (!best || pick.score > best.score) best = pick;
     }
     return best!;
   });
+}
+
+/** Angle step of the placement on the finer level (degrees), and how far it may walk from the sweep's estimate. */
+const STEP = 1;
+const MAX_STEPS = 3;
+/**
+ * Score below the best placement at which another quarter turn is not walked: a degree off the peak costs the
+ * right turn about 0.1 (measured on the test sheets), so 0.3 below is another turn, not a misjudged angle.
+ */
+const HOPELESS = 0.3;
+
+function placer(cv: OpenCv, keep: <M extends { delete(): void }>(m: M) => M, art: GreyLevel, scan: GreyLevel, ratio: number) {
+  const artMat = keep(cv.matFromArray(art.height, art.width, cv.CV_32F, art.data));
+  const scanMat = keep(cv.matFromArray(scan.height, scan.width, cv.CV_32F, scan.data));
+  // Whatever lies outside the sheet is lid: fill and pad with the scan's border colour, so that at the right
+  // placement the lid in the scan meets lid-coloured padding (a dark lid then marks the sheet edge instead
+  // of fighting the correlation).
+  const lid = borderMean(scan);
+  return (deg: number) => candidate(cv, keep, artMat, scanMat, art, scan, lid, deg, ratio);
 }
 
 function candidate(

@@ -91,36 +91,53 @@ function reduce(img: RgbaImage, k: number): GreyLevel {
   const h = Math.max(1, Math.floor(img.height / k1));
   const out = new Float32Array(w * h);
   const src = img.data;
-  const taps = blockTaps(k1);
-  const norm = 1 / (taps.length * taps.length);
-  const rowSum = new Float32Array(w);
+  const taps = blockTaps(k1), nt = taps.length;
+  const norm = 1 / (nt * nt);
+  // Each pixel is read as one 32-bit word and its bands summed two at a time in 16-bit lanes (R with B, G with
+  // A; 257 taps of 255 still fit a lane); luma is linear, so the block's mean luma is the luma of the band means.
+  const words = nt <= 257 && src.byteOffset % 4 === 0 && LITTLE_ENDIAN ? new Uint32Array(src.buffer, src.byteOffset, img.width * img.height) : null;
   for (let j = 0; j < h; j++) {
-    rowSum.fill(0);
-    for (const dy of taps) {
-      const row = (j * k1 + dy) * img.width * 4;
-      for (let i = 0; i < w; i++) {
-        let s = 0;
-        for (const dx of taps) {
-          const p = row + (i * k1 + dx) * 4;
-          s += 0.299 * src[p] + 0.587 * src[p + 1] + 0.114 * src[p + 2];
+    for (let t = 0; t < nt; t++) {
+      const row = (j * k1 + taps[t]) * img.width;
+      for (let i = 0, p0 = row; i < w; i++, p0 += k1) {
+        let rb = 0, ga = 0;
+        if (words) {
+          for (let d = 0; d < nt; d++) {
+            const v = words[p0 + taps[d]];
+            rb += v & 0xff00ff;
+            ga += (v >>> 8) & 0xff00ff;
+          }
+        } else {
+          for (let d = 0; d < nt; d++) {
+            const p = (p0 + taps[d]) * 4;
+            rb += src[p] + src[p + 2] * 65536;
+            ga += src[p + 1];
+          }
         }
-        rowSum[i] += s;
+        out[j * w + i] += 0.299 * (rb & 0xffff) + 0.587 * (ga & 0xffff) + 0.114 * (rb >>> 16);
       }
     }
-    for (let i = 0; i < w; i++) out[j * w + i] = rowSum[i] * norm;
+    for (let i = j * w; i < (j + 1) * w; i++) out[i] *= norm;
   }
   return { width: w, height: h, data: out, k: k1 };
 }
 
+const LITTLE_ENDIAN = new Uint8Array(new Uint32Array([1]).buffer)[0] === 1;
+
 /**
- * Offsets read inside a block: all of them for small blocks; every other one for blocks of 8 and more (a level
- * that small only needs the block's mean, and it quarters the reads of a 100-megapixel sheet), taken in
- * mirrored pairs so their mean stays exactly at the block centre (k − 1)/2.
+ * Offsets read inside a block: all of them for small blocks; for blocks of 8 and more every other one, and no
+ * more than about 8 a side for large blocks (a level that small only needs the block's mean: at 300 dpi a
+ * 4 mm block is 47 px, and reading 24 × 24 of its pixels made the level cost 40 ms on a B2 sheet, 9 × 9 about
+ * 9 ms, with the same registration error), taken in mirrored pairs so their mean stays exactly at the block
+ * centre (k − 1)/2.
  */
 function blockTaps(k: number): number[] {
   if (k < 8) return Array.from({ length: k }, (_, i) => i);
+  const step = Math.max(2, Math.ceil(k / MAX_TAPS));
   const taps = new Set<number>();
-  for (let o = 0; o < k / 2; o += 2) taps.add(o).add(k - 1 - o);
+  for (let o = Math.floor((step - 1) / 2); o < k / 2; o += step) taps.add(o).add(k - 1 - o);
   if (k % 2 === 1) taps.add((k - 1) / 2);
   return [...taps].sort((a, b) => a - b);
 }
+
+const MAX_TAPS = 8;
