@@ -15,7 +15,7 @@ export interface PxRegion {
 export class WarpBuffers {
   private rgbaBuffer = new Uint8Array(0);
   private maskBuffer = new Uint8Array(0);
-  rgba(n: number): Uint8Array {
+  pixels(n: number): Uint8Array {
     if (this.rgbaBuffer.length < n) this.rgbaBuffer = new Uint8Array(n);
     return zeroed(this.rgbaBuffer, n);
   }
@@ -41,10 +41,12 @@ export function warpScanToArtwork(
   artwork: { width: number; height: number },
   region: PxRegion = { x: 0, y: 0, w: artwork.width, h: artwork.height },
   into?: WarpBuffers,
+  /** 4: RGBA (alpha 255); 3: RGB, as the low-pass takes it. */
+  channels: 3 | 4 = 4,
 ): { image: RgbaImage; mask: Uint8Array } {
   const { w, h } = region;
   if (!(w > 0 && h > 0 && Number.isInteger(w) && Number.isInteger(h))) throw new RangeError("region must have a positive integer size");
-  const out = into ? into.rgba(w * h * 4) : new Uint8Array(w * h * 4);
+  const out = into ? into.pixels(w * h * channels) : new Uint8Array(w * h * channels);
   const mask = into ? into.mask(w * h) : new Uint8Array(w * h);
   const m = alignment.artworkToScan as Affine;
   const field = alignment.localField;
@@ -52,7 +54,7 @@ export function warpScanToArtwork(
   const src = scan.data, sw = scan.width, sh = scan.height;
   // Whole-pixel reads of the scan (little-endian RGBA words) for the fixed-point path.
   const src32 = src.byteOffset % 4 === 0 ? new Int32Array(src.buffer, src.byteOffset, sw * sh) : null;
-  const out32 = new Int32Array(out.buffer);
+  const out32 = channels === 4 ? new Int32Array(out.buffer, out.byteOffset, w * h) : null;
   for (let row = 0; row < h; row++) {
     const y = region.y + row;
     if (field) fieldRow(field, region.x, y, dx!, dy!);
@@ -65,7 +67,7 @@ export function warpScanToArtwork(
       [fastFrom, fastTo] = insideRun(xs, m[0], sw, w, insideRun(ys, m[3], sh, w, [0, w]));
       if (fastTo > fastFrom) {
         mask.fill(1, row * w + fastFrom, row * w + fastTo);
-        resampleRun(src32, sw, out32, row * w, xs, ys, m[0], m[3], fastFrom, fastTo);
+        resampleRun(src32, sw, out, out32, row * w, xs, ys, m[0], m[3], fastFrom, fastTo);
       }
     }
     for (let col = 0; col < w; col++, xs += m[0], ys += m[3]) {
@@ -83,7 +85,7 @@ export function warpScanToArtwork(
       if (!(px >= -0.5 && py >= -0.5 && px <= sw - 0.5 && py <= sh - 0.5)) continue;
       mask[row * w + col] = 1;
       if (src32 !== null && px >= 0 && py >= 0 && px < sw - 1 && py < sh - 1) {
-        resampleRun(src32, sw, out32, row * w, px, py, 0, 0, col, col + 1);
+        resampleRun(src32, sw, out, out32, row * w, px, py, 0, 0, col, col + 1);
         continue;
       }
       // Along the scan's border: clamp to the outer pixel centres, then interpolate between the four neighbours.
@@ -95,11 +97,11 @@ export function warpScanToArtwork(
       const p10 = sh > 1 ? p00 + sw * 4 : p00;
       const p11 = sw > 1 ? p10 + 4 : p10;
       const w00 = (1 - fx) * (1 - fy), w01 = fx * (1 - fy), w10 = (1 - fx) * fy, w11 = fx * fy;
-      const o = (row * w + col) * 4;
+      const o = (row * w + col) * channels;
       out[o] = w00 * src[p00] + w01 * src[p01] + w10 * src[p10] + w11 * src[p11] + 0.5;
       out[o + 1] = w00 * src[p00 + 1] + w01 * src[p01 + 1] + w10 * src[p10 + 1] + w11 * src[p11 + 1] + 0.5;
       out[o + 2] = w00 * src[p00 + 2] + w01 * src[p01 + 2] + w10 * src[p10 + 2] + w11 * src[p11 + 2] + 0.5;
-      out[o + 3] = 255;
+      if (channels === 4) out[o + 3] = 255;
     }
   }
   return { image: { width: w, height: h, data: out }, mask };
@@ -120,7 +122,7 @@ function insideRun(v0: number, step: number, size: number, w: number, within: [n
 }
 
 /** Bilinear resampling of columns [from, to) of one output row, every scan point inside the scan. */
-function resampleRun(src32: Int32Array, sw: number, out32: Int32Array, rowStart: number, xs0: number, ys0: number, sx: number, sy: number, from: number, to: number): void {
+function resampleRun(src32: Int32Array, sw: number, out: Uint8Array, out32: Int32Array | null, rowStart: number, xs0: number, ys0: number, sx: number, sy: number, from: number, to: number): void {
   let px = xs0 + sx * from, py = ys0 + sy * from;
   for (let col = from; col < to; col++, px += sx, py += sy) {
     // Fixed point at 1/16 px (a 1/32 px error at most), two channels a multiply: with weights summing to 256,
@@ -135,7 +137,13 @@ function resampleRun(src32: Int32Array, sw: number, out32: Int32Array, rowStart:
     rb = (rb + Math.imul(c & 0xff00ff, w10)) | 0;
     rb = (rb + Math.imul(d & 0xff00ff, w11) + 0x800080) | 0;
     const g = ((a >>> 8) & 0xff) * w00 + ((b >>> 8) & 0xff) * w01 + ((c >>> 8) & 0xff) * w10 + ((d >>> 8) & 0xff) * w11 + 0x80;
-    out32[rowStart + col] = ((rb >>> 8) & 0xff00ff) | (g & 0xff00) | -0x1000000;
+    if (out32 !== null) out32[rowStart + col] = ((rb >>> 8) & 0xff00ff) | (g & 0xff00) | -0x1000000;
+    else {
+      const o = (rowStart + col) * 3;
+      out[o] = (rb >>> 8) & 0xff;
+      out[o + 1] = g >>> 8;
+      out[o + 2] = rb >>> 24;
+    }
   }
 }
 

@@ -4,13 +4,13 @@
 import { warpScanToArtwork } from "./align";
 import { WarpBuffers } from "./align-warp";
 import { compareBand, CompareScratch, type BandDifference } from "./compare";
-import { applyColourModel, lowPass, type ColourModel } from "./normalise";
+import { lowPassRgb, mapColours, type ColourModel } from "./normalise";
 import { preparedRect, type ContrastWindows } from "./prepared";
 import { intersect, type PxRect } from "./raster";
 import type { Alignment, RgbaImage } from "./types";
 
-/** RGBA (alpha 255) of a rectangle of the scan seen in the artwork's pixel grid, and 1 where the scan covers it. */
-export type AlignedScanSource = (rect: PxRect) => { rgba: Uint8Array; mask: Uint8Array };
+/** RGB (3 bytes a pixel) of a rectangle of the scan seen in the artwork's pixel grid, and 1 where the scan covers it. */
+export type AlignedScanSource = (rect: PxRect) => { rgb: Uint8Array; mask: Uint8Array };
 
 /**
  * The scan through its alignment, resampled one rectangle at a time: no full-size warped copy is held. With
@@ -19,8 +19,8 @@ export type AlignedScanSource = (rect: PxRect) => { rgba: Uint8Array; mask: Uint
 export function alignedScanSource(scan: RgbaImage, alignment: Alignment, artwork: RgbaImage, reuse = false): AlignedScanSource {
   const buffers = reuse ? new WarpBuffers() : undefined;
   return (rect) => {
-    const { image, mask } = warpScanToArtwork(scan, alignment, artwork, rect, buffers);
-    return { rgba: image.data as Uint8Array, mask };
+    const { image, mask } = warpScanToArtwork(scan, alignment, artwork, rect, buffers, 3);
+    return { rgb: image.data as Uint8Array, mask };
   };
 }
 
@@ -62,9 +62,10 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
   const scanPatch = ctx.source(ext);
   const [artPrepared, scanLow] = await Promise.all([
     preparedRect(art, ext, ctx.windows),
-    lowPass(scanPatch.rgba, ext.w, ext.h, ctx.sigmaPx),
+    lowPassRgb(scanPatch.rgb, ext.w, ext.h, ctx.sigmaPx),
   ]);
-  applyColourModel(ctx.model, scanLow);
+  const scanNormal = new Uint8Array(ext.w * ext.h * 4);
+  mapColours(ctx.model, scanLow, 3, scanNormal);
   const inspect = inspectMask(ctx, core, ext, scanPatch.mask, Math.ceil(2 * ctx.sigmaPx) + 1);
   const mid = performance.now();
   ctx.timings.normalise += mid - started;
@@ -74,7 +75,7 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
   const wideInspect = new Uint8Array(ext.w * core.h);
   for (let row = 0; row < core.h; row++) wideInspect.set(inspect.subarray(row * core.w, (row + 1) * core.w), row * ext.w + (core.x - ext.x));
   const diff = compareBand(
-    { width: ext.w, rows: ext.h, art: artPrepared, scan: scanLow, coreY, coreRows: core.h, inspect: wideInspect },
+    { width: ext.w, rows: ext.h, art: artPrepared, scan: scanNormal, coreY, coreRows: core.h, inspect: wideInspect },
     { lowDeltaE00: ctx.lowDeltaE00, peakDeltaE00: ctx.peakDeltaE00, radiusPx: ctx.radiusPx, everyPixel },
     ctx.scratch,
   );

@@ -47,26 +47,37 @@ const CACHE_SLOTS = 1 << 16;
 
 /** Applies the model to RGBA pixels in place (alpha untouched), trilinear in the table. Allocation-free. */
 export function applyColourModel(model: ColourModel, rgba: Uint8Array): void {
+  mapColours(model, rgba, 4, rgba);
+}
+
+/**
+ * The model from `src` (3 or 4 bytes a pixel) into RGBA `out` (alpha set to 255 when `src` has none), through a
+ * direct-mapped cache of the table's answers.
+ */
+export function mapColours(model: ColourModel, src: Uint8Array, srcChannels: 3 | 4, out: Uint8Array): void {
   const lut = model.lut;
   const s = (LUT_SIZE - 1) / 255;
   const sg = LUT_SIZE * 3, sr = LUT_SIZE * LUT_SIZE * 3;
   const keys = (model.cacheKeys ??= new Int32Array(CACHE_SLOTS).fill(-1));
   const values = (model.cacheValues ??= new Int32Array(CACHE_SLOTS));
-  for (let i = 0; i < rgba.length; i += 4) {
-    const key = (rgba[i] << 16) | (rgba[i + 1] << 8) | rgba[i + 2];
-    const slot = ((key * 2654435761) >>> 16) & (CACHE_SLOTS - 1);
+  const n = src.length / srcChannels;
+  for (let j = 0, i = 0, o4 = 0; j < n; j++, i += srcChannels, o4 += 4) {
+    const key = (src[i] << 16) | (src[i + 1] << 8) | src[i + 2];
+    const slot = Math.imul(key, 0x9e3779b1) >>> 16;
+    if (srcChannels === 3) out[o4 + 3] = 255;
     if (keys[slot] === key) {
       const v = values[slot];
-      rgba[i] = v >>> 16; rgba[i + 1] = (v >>> 8) & 255; rgba[i + 2] = v & 255;
+      out[o4] = v >>> 16; out[o4 + 1] = (v >>> 8) & 255; out[o4 + 2] = v & 255;
       continue;
     }
-    const fr = rgba[i] * s, fg = rgba[i + 1] * s, fb = rgba[i + 2] * s;
+    const fr = src[i] * s, fg = src[i + 1] * s, fb = src[i + 2] * s;
     let ir = fr | 0, ig = fg | 0, ib = fb | 0;
     if (ir > LUT_SIZE - 2) ir = LUT_SIZE - 2;
     if (ig > LUT_SIZE - 2) ig = LUT_SIZE - 2;
     if (ib > LUT_SIZE - 2) ib = LUT_SIZE - 2;
     const dr = fr - ir, dg = fg - ig, db = fb - ib;
     const o = ir * sr + ig * sg + ib * 3;
+    let packed = 0;
     for (let c = 0; c < 3; c++) {
       const p = o + c;
       const c00 = lut[p] + (lut[p + 3] - lut[p]) * db;
@@ -75,10 +86,12 @@ export function applyColourModel(model: ColourModel, rgba: Uint8Array): void {
       const c11 = lut[p + sr + sg] + (lut[p + sr + sg + 3] - lut[p + sr + sg]) * db;
       const c0 = c00 + (c01 - c00) * dg, c1 = c10 + (c11 - c10) * dg;
       const v = c0 + (c1 - c0) * dr;
-      rgba[i + c] = v <= 0 ? 0 : v >= 255 ? 255 : (v + 0.5) | 0;
+      const q = v <= 0 ? 0 : v >= 255 ? 255 : (v + 0.5) | 0;
+      out[o4 + c] = q;
+      packed = (packed << 8) | q;
     }
     keys[slot] = key;
-    values[slot] = (rgba[i] << 16) | (rgba[i + 1] << 8) | rgba[i + 2];
+    values[slot] = packed;
   }
 }
 

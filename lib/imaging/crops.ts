@@ -30,7 +30,9 @@ export async function makeCrops(
   const art = ctx.artwork;
   const rect = cropRectFor(f, dpi, art.width, art.height);
   const artRgba = cropRgba(art.data, art.width, rect);
-  const scanRgba = ctx.source(rect).rgba;
+  const scanRgb = ctx.source(rect).rgb;
+  const scanRgba = new Uint8Array(rect.w * rect.h * 4);
+  for (let i = 0; i < rect.w * rect.h; i++) scanRgba.set([scanRgb[i * 3], scanRgb[i * 3 + 1], scanRgb[i * 3 + 2], 255], i * 4);
   const diff = await processRect(ctx, rect, true);
   const heat = new Uint8Array(rect.w * rect.h * 4);
   const low = ctx.lowDeltaE00, span = Math.max(1e-6, 2 * peakDeltaE00 - low);

@@ -73,6 +73,7 @@ export function prepareLowPassed(low: Uint8Array, rect: PxRect, w: ContrastWindo
   const lightGround = new Uint8Array(rect.w * rect.h);
   localContrast(lab, rect.w, rect.h, w.radiusPx, near, null);
   localContrast(lab, rect.w, rect.h, w.reachPx, contrast, lightGround);
+  verticalScratch = new Float32Array(0);
   return { rect, low, lab, nearContrast: near, contrast, lightGround };
 }
 
@@ -178,7 +179,8 @@ function slidingExtent(src: Float32Array, n: number, k: number, min: Float32Arra
   }
 }
 // Scratch of the running extremes, kept between calls: a page's planes are tens of megabytes each, and fresh
-// ones for every pass cost more in page faults than the passes themselves. Per thread; freed with the thread.
+// ones for every pass cost more in page faults than the passes themselves. Per thread; the large one is let go
+// once a preparation is done.
 let extentScratch = new Float32Array(0);
 let verticalScratch = new Float32Array(0);
 
