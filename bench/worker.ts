@@ -1,5 +1,6 @@
 // One benchmark worker thread: builds simulated sheets and inspects them with the engine's entry point.
 import { parentPort } from "node:worker_threads";
+import sharp from "sharp";
 import { inspectSheet } from "../lib/imaging/inspect";
 import { getProfile } from "../lib/imaging/profiles";
 import type { InspectionResult } from "../lib/imaging/types";
@@ -9,6 +10,10 @@ export type WorkerJob =
   | { type: "sheet"; id: number; spec: SheetSpec; profile: string }
   | { type: "prepare"; id: number; spec: SheetSpec; profile: string }
   | { type: "repeat"; id: number; count: number };
+
+// As in the product's worker: the sheets run in parallel threads, so libvips keeps to one thread a call
+// instead of every call reaching for every core.
+sharp.concurrency(1);
 
 let prepared: { sheet: BenchSheet; profile: string } | null = null;
 

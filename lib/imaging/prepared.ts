@@ -22,6 +22,13 @@ export interface ContrastWindows {
   reachPx: number;
 }
 
+/**
+ * Beyond the reach, how far a scan still carries an edge's error: a JPEG scan's chroma is kept at half
+ * resolution and coded in 16-pixel blocks, so a strong edge bleeds colour up to about that many scan pixels into
+ * a solid (seen as "colour shifts" inside the black patch beside yellow and red on simulated q92 scans).
+ */
+export const BLEED_PX = 12;
+
 /** The prepared artwork over one rectangle (rows of `rect.w` pixels). */
 export interface PreparedRect {
   rect: PxRect;
@@ -33,6 +40,8 @@ export interface PreparedRect {
   nearContrast: Uint8Array;
   /** The same within the radius plus the low-pass's reach. */
   contrast: Uint8Array;
+  /** The same within the reach plus BLEED_PX. */
+  wideContrast: Uint8Array;
   /** 1 where the mean lightness over the reach lies above the middle of its range: type on a light ground. */
   lightGround: Uint8Array;
 }
@@ -73,8 +82,10 @@ export function prepareLowPassed(low: Uint8Array, rect: PxRect, w: ContrastWindo
   const lightGround = new Uint8Array(rect.w * rect.h);
   localContrast(lab, rect.w, rect.h, w.radiusPx, near, null);
   localContrast(lab, rect.w, rect.h, w.reachPx, contrast, lightGround);
+  const wideContrast = new Uint8Array(rect.w * rect.h);
+  localContrast(lab, rect.w, rect.h, w.reachPx + BLEED_PX, wideContrast, null);
   verticalScratch = new Float32Array(0);
-  return { rect, low, lab, nearContrast: near, contrast, lightGround };
+  return { rect, low, lab, nearContrast: near, contrast, wideContrast, lightGround };
 }
 
 /** A rectangle of a prepared whole page (copied unless it is a run of full rows). */
@@ -88,6 +99,7 @@ function sub(whole: PreparedRect, r: PxRect): PreparedRect {
       lab: whole.lab.subarray(a * 3, b * 3),
       nearContrast: whole.nearContrast.subarray(a, b),
       contrast: whole.contrast.subarray(a, b),
+      wideContrast: whole.wideContrast.subarray(a, b),
       lightGround: whole.lightGround.subarray(a, b),
     };
   }
@@ -98,6 +110,7 @@ function sub(whole: PreparedRect, r: PxRect): PreparedRect {
     lab: new Float32Array(n * 3),
     nearContrast: new Uint8Array(n),
     contrast: new Uint8Array(n),
+    wideContrast: new Uint8Array(n),
     lightGround: new Uint8Array(n),
   };
   for (let row = 0; row < r.h; row++) {
@@ -106,6 +119,7 @@ function sub(whole: PreparedRect, r: PxRect): PreparedRect {
     out.lab.set(whole.lab.subarray(from * 3, (from + r.w) * 3), to * 3);
     out.nearContrast.set(whole.nearContrast.subarray(from, from + r.w), to);
     out.contrast.set(whole.contrast.subarray(from, from + r.w), to);
+    out.wideContrast.set(whole.wideContrast.subarray(from, from + r.w), to);
     out.lightGround.set(whole.lightGround.subarray(from, from + r.w), to);
   }
   return out;

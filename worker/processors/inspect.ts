@@ -24,9 +24,29 @@ import { deleteUnder, getObjectBuffer, putObject } from "@/storage/objects";
 
 const RASTER_WAIT_MS = 3000;
 
+// Inspections run in parallel worker threads (WORKER_CONCURRENCY), which is where the cores go: libvips keeps to
+// one thread a call instead of every call reaching for every core (the setting is the process's).
+sharp.concurrency(1);
+
+/**
+ * The last artwork this thread inspected against, kept decoded: the engine prepares the artwork side once per
+ * raster buffer (lib/imaging/prepared.ts), and the sheets of a press run come one after another with the same
+ * approved revision. One is kept, so memory stays at one artwork per thread.
+ */
+let lastArtwork: { key: string; artwork: ArtworkRaster } | null = null;
+
 async function loadArtwork(work: InspectionWork): Promise<ArtworkRaster> {
   const key = work.revision.rasterKeys?.[0];
   if (!key) throw new Error("The artwork raster has no storage key");
+  const cacheKey = `${work.revision.id}:${key}:${work.revision.rasterDpi}`;
+  if (lastArtwork?.key === cacheKey) return lastArtwork.artwork;
+  lastArtwork = null;
+  const artwork = await decodeArtwork(work, key);
+  lastArtwork = { key: cacheKey, artwork };
+  return artwork;
+}
+
+async function decodeArtwork(work: InspectionWork, key: string): Promise<ArtworkRaster> {
   const png = await getObjectBuffer(key);
   const { data, info } = await sharp(png).ensureAlpha().raw().toBuffer({ resolveWithObject: true });
   return {
