@@ -33,13 +33,12 @@ const EDGE_ALLOWANCE = 0.15;
  */
 const EDGE_ALLOWANCE_COLOUR = 0.35;
 /**
- * What is forgiven per unit of the contrast a little farther out (prepared.ts, BLEED_PX), for a JPEG scan's
- * colour bleeding into solids beside strong edges: a share of the edge's contrast, larger for a sideways move in
- * colour (what chroma subsampling produces) than for ink. Set on simulated q92 scans, where the black patch of the
- * colour bar showed ΔE00 up to 11 a millimetre from its yellow and red neighbours; a planted dot or void differs by
- * several times that.
+ * What a sideways move in colour is forgiven per unit of the contrast a little farther out (prepared.ts,
+ * BLEED_PX): a JPEG scan's chroma, kept at half resolution, bleeds from strong edges into solids. Set on simulated
+ * q92 scans, where the black patch of the colour bar showed ΔE00 up to 11 a millimetre from its yellow and red
+ * neighbours; ink (dots, voids, a changed glyph) gets no such allowance, since chroma bleeding does not move
+ * lightness.
  */
-const BLEED_ALLOWANCE = 0.05;
 const BLEED_ALLOWANCE_COLOUR = 0.08;
 /**
  * The edge allowance of the structural check: a changed glyph in small print adds ink where the artwork has
@@ -194,8 +193,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       // structural allowance reaches the profile's level.
       const contrast = contrastOf[pix];
       const nearType = art.lightGround[pix] === 1 && contrast >= STRUCTURAL_MIN_CONTRAST;
-      const bleed = art.wideContrast[pix];
-      const edgeFloor = low + EDGE_ALLOWANCE * contrast + BLEED_ALLOWANCE * bleed;
+      const edgeFloor = low + EDGE_ALLOWANCE * contrast;
       const floor = nearType ? Math.min(edgeFloor, peak + EDGE_ALLOWANCE_STRUCTURAL * contrast) : edgeFloor;
       if (DE00_OVER_DEAB * DE00_OVER_DEAB * direct < floor * floor && !settings.everyPixel) continue;
       const x0 = Math.max(0, x - r), x1 = Math.min(width - 1, x + r);
@@ -218,7 +216,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       const e = e1 > e2 ? e1 : e2;
       if (e < low && !settings.everyPixel) continue;
       const k = classify(al, aa, ab, sl, sa, sb);
-      const s = e - (k === PIXEL_COLOUR_SHIFT ? EDGE_ALLOWANCE_COLOUR * contrast + BLEED_ALLOWANCE_COLOUR * bleed : EDGE_ALLOWANCE * contrast + BLEED_ALLOWANCE * bleed);
+      const s = e - (k === PIXEL_COLOUR_SHIFT ? EDGE_ALLOWANCE_COLOUR * contrast + BLEED_ALLOWANCE_COLOUR * art.wideContrast[pix] : EDGE_ALLOWANCE * contrast);
       // Small print is dark type on a light ground (the ground's lightness dominates around it); in type
       // reversed out of a dark solid the scan's softness fills strokes in, which looks much like a change.
       const structuralInk = k !== PIXEL_COLOUR_SHIFT && nearType && e - EDGE_ALLOWANCE_STRUCTURAL * contrast >= peak;

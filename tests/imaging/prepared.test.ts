@@ -1,0 +1,46 @@
+// The artwork side prepared once per artwork: its local contrast against a direct computation on the same data,
+// and the cache handing back the same preparation for every sheet of a run.
+import { describe, expect, it } from "vitest";
+import { preparedRect, prepareLowPassed } from "@/lib/imaging/prepared";
+
+const W = 57, H = 41;
+
+function noise(): Uint8Array {
+  const low = new Uint8Array(W * H * 4);
+  for (let i = 0; i < W * H; i++) low.set([(i * 7919) % 256, (i * 104729) % 256, (i * 31) % 256, 255], i * 4);
+  return low;
+}
+
+describe("prepared artwork", () => {
+  it.each([1, 3, 4, 7])("gives the ΔE*ab extent over a square of radius %i, clipped at the borders, as a direct scan does", (k) => {
+    const p = prepareLowPassed(noise(), { x: 0, y: 0, w: W, h: H }, { opticalBlurPx: 0, sigmaPx: 1, radiusPx: k, reachPx: k });
+    let mismatches = 0;
+    for (let y = 0; y < H; y++) {
+      for (let x = 0; x < W; x++) {
+        const lo = [Infinity, Infinity, Infinity], hi = [-Infinity, -Infinity, -Infinity];
+        for (let yy = Math.max(0, y - k); yy <= Math.min(H - 1, y + k); yy++) {
+          for (let xx = Math.max(0, x - k); xx <= Math.min(W - 1, x + k); xx++) {
+            for (let c = 0; c < 3; c++) {
+              lo[c] = Math.min(lo[c], p.lab[(yy * W + xx) * 3 + c]);
+              hi[c] = Math.max(hi[c], p.lab[(yy * W + xx) * 3 + c]);
+            }
+          }
+        }
+        const extent = Math.min(255, Math.floor(Math.hypot(hi[0] - lo[0], hi[1] - lo[1], hi[2] - lo[2])));
+        if (extent !== p.contrast[y * W + x] || extent !== p.nearContrast[y * W + x]) mismatches++;
+      }
+    }
+    expect(mismatches).toBe(0);
+  });
+
+  it("prepares a page once and hands out rows of it for every band", async () => {
+    const art = { width: W, height: H, data: noise() };
+    const windows = { opticalBlurPx: 0, sigmaPx: 1.2, radiusPx: 1, reachPx: 4 };
+    const whole = await preparedRect(art, { x: 0, y: 0, w: W, h: H }, windows);
+    const band = await preparedRect(art, { x: 0, y: 10, w: W, h: 5 }, windows);
+    expect(band.lab.buffer).toBe(whole.lab.buffer);
+    expect([...band.contrast]).toEqual([...whole.contrast.subarray(10 * W, 15 * W)]);
+    const corner = await preparedRect(art, { x: 5, y: 6, w: 7, h: 3 }, windows);
+    expect(corner.lab[0]).toBe(whole.lab[(6 * W + 5) * 3]);
+  });
+});
