@@ -64,7 +64,7 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
     preparedRect(art, ext, ctx.windows),
     lowPassRgb(scanPatch.rgb, ext.w, ext.h, ctx.sigmaPx),
   ]);
-  const scanNormal = new Uint8Array(ext.w * ext.h * 4);
+  const scanNormal = ctx.scratch.normalisedScan(ext.w * ext.h * 4);
   mapColours(ctx.model, scanLow, 3, scanNormal);
   const inspect = inspectMask(ctx, core, ext, scanPatch.mask, Math.ceil(2 * ctx.sigmaPx) + 1);
   const mid = performance.now();
@@ -72,8 +72,11 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
 
   // compareBand works on full rows of the patch: crop the core columns out afterwards when the rect is narrow.
   const coreY = core.y - ext.y;
-  const wideInspect = new Uint8Array(ext.w * core.h);
-  for (let row = 0; row < core.h; row++) wideInspect.set(inspect.subarray(row * core.w, (row + 1) * core.w), row * ext.w + (core.x - ext.x));
+  let wideInspect = inspect;
+  if (ext.w !== core.w) {
+    wideInspect = new Uint8Array(ext.w * core.h);
+    for (let row = 0; row < core.h; row++) wideInspect.set(inspect.subarray(row * core.w, (row + 1) * core.w), row * ext.w + (core.x - ext.x));
+  }
   const diff = compareBand(
     { width: ext.w, rows: ext.h, art: artPrepared, scan: scanNormal, coreY, coreRows: core.h, inspect: wideInspect },
     { lowDeltaE00: ctx.lowDeltaE00, peakDeltaE00: ctx.peakDeltaE00, radiusPx: ctx.radiusPx, everyPixel },

@@ -101,6 +101,13 @@ export class CompareScratch {
   readonly labKeys = new Int32Array(LAB_CACHE_SLOTS).fill(-1);
   readonly labValues = new Float32Array(LAB_CACHE_SLOTS * 3);
 
+  private normalised = new Uint8Array(0);
+  /** The band's normalised scan (RGBA), overwritten by the next band. */
+  normalisedScan(n: number): Uint8Array {
+    if (this.normalised.length < n) this.normalised = new Uint8Array(n);
+    return this.normalised.subarray(0, n);
+  }
+
   screenBuffer(n: number): Uint8Array {
     if (this.screen.length < n) this.screen = new Uint8Array(n);
     const out = this.screen.subarray(0, n);
