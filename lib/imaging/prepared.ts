@@ -36,11 +36,9 @@ export interface PreparedRect {
   low: Uint8Array;
   /** CIELAB (D65) of `low`, 3 floats a pixel. */
   lab: Float32Array;
-  /** ΔE*ab extent of `lab` within the registration radius (floored to whole units). */
-  nearContrast: Uint8Array;
-  /** The same within the radius plus the low-pass's reach. */
+  /** ΔE*ab extent of `lab` within the registration radius plus the low-pass's reach (floored to whole units). */
   contrast: Uint8Array;
-  /** The same within the reach plus BLEED_PX. */
+  /** The same within at least the reach plus BLEED_PX (on 4-pixel blocks, so up to 6 pixels more). */
   wideContrast: Uint8Array;
   /** 1 where the mean lightness over the reach lies above the middle of its range: type on a light ground. */
   lightGround: Uint8Array;
@@ -77,15 +75,12 @@ async function prepare(art: RgbaImage, rect: PxRect, w: ContrastWindows): Promis
 /** The prepared artwork from an already low-passed RGBA rectangle. */
 export function prepareLowPassed(low: Uint8Array, rect: PxRect, w: ContrastWindows): PreparedRect {
   const lab = rgbaToLab(low);
-  const near = new Uint8Array(rect.w * rect.h);
   const contrast = new Uint8Array(rect.w * rect.h);
   const lightGround = new Uint8Array(rect.w * rect.h);
-  localContrast(lab, rect.w, rect.h, w.radiusPx, near, null);
   localContrast(lab, rect.w, rect.h, w.reachPx, contrast, lightGround);
-  const wideContrast = new Uint8Array(rect.w * rect.h);
-  localContrast(lab, rect.w, rect.h, w.reachPx + BLEED_PX, wideContrast, null);
+  const wideContrast = blockContrast(lab, rect.w, rect.h, w.reachPx + BLEED_PX);
   verticalScratch = new Float32Array(0);
-  return { rect, low, lab, nearContrast: near, contrast, wideContrast, lightGround };
+  return { rect, low, lab, contrast, wideContrast, lightGround };
 }
 
 /** A rectangle of a prepared whole page (copied unless it is a run of full rows). */
@@ -97,7 +92,6 @@ function sub(whole: PreparedRect, r: PxRect): PreparedRect {
       rect: r,
       low: whole.low.subarray(a * 4, b * 4),
       lab: whole.lab.subarray(a * 3, b * 3),
-      nearContrast: whole.nearContrast.subarray(a, b),
       contrast: whole.contrast.subarray(a, b),
       wideContrast: whole.wideContrast.subarray(a, b),
       lightGround: whole.lightGround.subarray(a, b),
@@ -108,7 +102,6 @@ function sub(whole: PreparedRect, r: PxRect): PreparedRect {
     rect: r,
     low: new Uint8Array(n * 4),
     lab: new Float32Array(n * 3),
-    nearContrast: new Uint8Array(n),
     contrast: new Uint8Array(n),
     wideContrast: new Uint8Array(n),
     lightGround: new Uint8Array(n),
@@ -117,7 +110,6 @@ function sub(whole: PreparedRect, r: PxRect): PreparedRect {
     const from = (r.y + row) * W + r.x, to = row * r.w;
     out.low.set(whole.low.subarray(from * 4, (from + r.w) * 4), to * 4);
     out.lab.set(whole.lab.subarray(from * 3, (from + r.w) * 3), to * 3);
-    out.nearContrast.set(whole.nearContrast.subarray(from, from + r.w), to);
     out.contrast.set(whole.contrast.subarray(from, from + r.w), to);
     out.wideContrast.set(whole.wideContrast.subarray(from, from + r.w), to);
     out.lightGround.set(whole.lightGround.subarray(from, from + r.w), to);
@@ -154,6 +146,51 @@ function localContrast(lab: Float32Array, w: number, h: number, k: number, out: 
     out[i] = e >= 255 ? 255 : e | 0;
   }
   if (lightGround) lightGroundOf(lab, w, h, k, lo[0], hi[0], lightGround);
+}
+
+/**
+ * ΔE*ab extent over a square of radius at least k (at most k + 6) around each pixel: extremes of 4 × 4 blocks,
+ * then over the blocks near the pixel's own. For the bleed allowance, a coarse figure by nature, at a sixteenth
+ * of the per-pixel passes.
+ */
+function blockContrast(lab: Float32Array, w: number, h: number, k: number): Uint8Array {
+  const B = 4, bw = Math.ceil(w / B), bh = Math.ceil(h / B), nb = bw * bh;
+  const lo = [0, 1, 2].map(() => new Float32Array(nb).fill(Infinity));
+  const hi = [0, 1, 2].map(() => new Float32Array(nb).fill(-Infinity));
+  for (let y = 0; y < h; y++) {
+    const rowBlock = (y >> 2) * bw;
+    for (let x = 0; x < w; x++) {
+      const b = rowBlock + (x >> 2), p = (y * w + x) * 3;
+      for (let c = 0; c < 3; c++) {
+        const v = lab[p + c];
+        if (v < lo[c][b]) lo[c][b] = v;
+        if (v > hi[c][b]) hi[c][b] = v;
+      }
+    }
+  }
+  // Blocks within kb of a pixel's block cover [x − k, x + k] whatever the pixel's place in its block.
+  const kb = Math.ceil((k + B - 1) / B);
+  const line = new Float32Array(bw), lineOut = new Float32Array(bw);
+  for (let c = 0; c < 3; c++) {
+    for (let by = 0; by < bh; by++) {
+      line.set(lo[c].subarray(by * bw, (by + 1) * bw));
+      slidingExtent(line, bw, kb, lineOut, null);
+      lo[c].set(lineOut, by * bw);
+      line.set(hi[c].subarray(by * bw, (by + 1) * bw));
+      slidingExtent(line, bw, kb, null, lineOut);
+      hi[c].set(lineOut, by * bw);
+    }
+    verticalExtent(lo[c], bw, bh, kb, false);
+    verticalExtent(hi[c], bw, bh, kb, true);
+  }
+  const blockOut = new Uint8Array(nb);
+  for (let b = 0; b < nb; b++) {
+    const e = Math.hypot(hi[0][b] - lo[0][b], hi[1][b] - lo[1][b], hi[2][b] - lo[2][b]);
+    blockOut[b] = e >= 255 ? 255 : e | 0;
+  }
+  const out = new Uint8Array(w * h);
+  for (let y = 0; y < h; y++) for (let x = 0; x < w; x++) out[y * w + x] = blockOut[(y >> 2) * bw + (x >> 2)];
+  return out;
 }
 
 /**

@@ -1,7 +1,7 @@
 // The artwork side prepared once per artwork: its local contrast against a direct computation on the same data,
 // and the cache handing back the same preparation for every sheet of a run.
 import { describe, expect, it } from "vitest";
-import { preparedRect, prepareLowPassed } from "@/lib/imaging/prepared";
+import { BLEED_PX, preparedRect, prepareLowPassed } from "@/lib/imaging/prepared";
 
 const W = 57, H = 41;
 
@@ -12,22 +12,27 @@ function noise(): Uint8Array {
 }
 
 describe("prepared artwork", () => {
-  it.each([1, 3, 4, 7])("gives the ΔE*ab extent over a square of radius %i, clipped at the borders, as a direct scan does", (k) => {
-    const p = prepareLowPassed(noise(), { x: 0, y: 0, w: W, h: H }, { opticalBlurPx: 0, sigmaPx: 1, radiusPx: k, reachPx: k });
+  it.each([1, 3, 4, 7])("gives the ΔE*ab extent over a square of radius %i, clipped at the borders, as a direct scan does (and about BLEED_PX more for the bleed)", (k) => {
+    const p = prepareLowPassed(noise(), { x: 0, y: 0, w: W, h: H }, { opticalBlurPx: 0, sigmaPx: 1, radiusPx: 1, reachPx: k });
+    const direct = (x: number, y: number, r: number) => {
+      const lo = [Infinity, Infinity, Infinity], hi = [-Infinity, -Infinity, -Infinity];
+      for (let yy = Math.max(0, y - r); yy <= Math.min(H - 1, y + r); yy++) {
+        for (let xx = Math.max(0, x - r); xx <= Math.min(W - 1, x + r); xx++) {
+          for (let c = 0; c < 3; c++) {
+            lo[c] = Math.min(lo[c], p.lab[(yy * W + xx) * 3 + c]);
+            hi[c] = Math.max(hi[c], p.lab[(yy * W + xx) * 3 + c]);
+          }
+        }
+      }
+      return Math.min(255, Math.floor(Math.hypot(hi[0] - lo[0], hi[1] - lo[1], hi[2] - lo[2])));
+    };
     let mismatches = 0;
     for (let y = 0; y < H; y++) {
       for (let x = 0; x < W; x++) {
-        const lo = [Infinity, Infinity, Infinity], hi = [-Infinity, -Infinity, -Infinity];
-        for (let yy = Math.max(0, y - k); yy <= Math.min(H - 1, y + k); yy++) {
-          for (let xx = Math.max(0, x - k); xx <= Math.min(W - 1, x + k); xx++) {
-            for (let c = 0; c < 3; c++) {
-              lo[c] = Math.min(lo[c], p.lab[(yy * W + xx) * 3 + c]);
-              hi[c] = Math.max(hi[c], p.lab[(yy * W + xx) * 3 + c]);
-            }
-          }
-        }
-        const extent = Math.min(255, Math.floor(Math.hypot(hi[0] - lo[0], hi[1] - lo[1], hi[2] - lo[2])));
-        if (extent !== p.contrast[y * W + x] || extent !== p.nearContrast[y * W + x]) mismatches++;
+        if (direct(x, y, k) !== p.contrast[y * W + x]) mismatches++;
+        // The bleed's wider window is taken on 4-pixel blocks: at least k + BLEED_PX, at most 6 pixels more.
+        const wide = p.wideContrast[y * W + x];
+        if (wide < direct(x, y, k + BLEED_PX) || wide > direct(x, y, k + BLEED_PX + 6)) mismatches++;
       }
     }
     expect(mismatches).toBe(0);
