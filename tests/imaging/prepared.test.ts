@@ -30,9 +30,9 @@ describe("prepared artwork", () => {
     for (let y = 0; y < H; y++) {
       for (let x = 0; x < W; x++) {
         if (direct(x, y, k) !== p.contrast[y * W + x]) mismatches++;
-        // The bleed's wider window is taken on 4-pixel blocks: at least k + BLEED_PX, at most 6 pixels more.
+        // The bleed's wider window is taken on 2-pixel blocks: at least k + BLEED_PX, at most 2 pixels more.
         const wide = p.wideContrast[y * W + x];
-        if (wide < direct(x, y, k + BLEED_PX) || wide > direct(x, y, k + BLEED_PX + 6)) mismatches++;
+        if (wide < direct(x, y, k + BLEED_PX) || wide > direct(x, y, k + BLEED_PX + 2)) mismatches++;
       }
     }
     expect(mismatches).toBe(0);
