@@ -13,11 +13,11 @@ import type { Alignment, RgbaImage } from "./types";
 export type AlignedScanSource = (rect: PxRect) => { rgb: Uint8Array; mask: Uint8Array };
 
 /**
- * The scan through its alignment, resampled one rectangle at a time: no full-size warped copy is held. With
- * `reuse`, each rectangle overwrites the previous one's buffers (the band loop); without, every call is fresh.
+ * The scan through its alignment, resampled one rectangle at a time: no full-size warped copy is held. Each
+ * rectangle overwrites the previous one's buffers, so a caller uses a result before asking for the next.
  */
-export function alignedScanSource(scan: RgbaImage, alignment: Alignment, artwork: RgbaImage, reuse = false): AlignedScanSource {
-  const buffers = reuse ? new WarpBuffers() : undefined;
+export function alignedScanSource(scan: RgbaImage, alignment: Alignment, artwork: RgbaImage): AlignedScanSource {
+  const buffers = new WarpBuffers();
   return (rect) => {
     const { image, mask } = warpScanToArtwork(scan, alignment, artwork, rect, buffers, 3);
     return { rgb: image.data as Uint8Array, mask };

@@ -109,7 +109,8 @@ export function fitColourModel(pairs: SamplePairs): ColourModel {
   const points = groups.map((gr) => ({ x: curved(gr.scan[0], gr.scan[1], gr.scan[2]).map((v) => v / 255), y: gr.art.map((v) => v / 255) }));
   const beta = fitPolynomial(points);
   // The table at its nodes: tone curves, then the polynomial. Nodes fall on whole 8-bit codes only at the ends,
-  // so the curves are sampled once per node index (LUT_SIZE values a channel), not per node.
+  // so the curves are sampled once per node index (LUT_SIZE values a channel), not per node; the terms are those
+  // of features(), unrolled, since the table has 36 000 nodes.
   const nodeCurve = [0, 1, 2].map((c) => Float64Array.from({ length: LUT_SIZE }, (_, i) => interp(curves[c], i * STEP) / 255));
   const lut = new Float32Array(LUT_SIZE ** 3 * 3);
   for (let r = 0, o = 0; r < LUT_SIZE; r++) {

@@ -203,7 +203,9 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       // structural allowance reaches the profile's level.
       const contrast = contrastOf[pix];
       const nearType = art.lightGround[pix] === 1 && contrast >= STRUCTURAL_MIN_CONTRAST;
-      const edgeFloor = low + EDGE_ALLOWANCE * contrast + BLEED_ALLOWANCE_INK * art.wideContrast[pix];
+      const bleed = art.wideContrast[pix];
+      const inkAllowance = EDGE_ALLOWANCE * contrast + BLEED_ALLOWANCE_INK * bleed;
+      const edgeFloor = low + inkAllowance;
       const floor = nearType ? Math.min(edgeFloor, peak + EDGE_ALLOWANCE_STRUCTURAL * contrast) : edgeFloor;
       if (DE00_OVER_DEAB * DE00_OVER_DEAB * direct < floor * floor && !settings.everyPixel) continue;
       const x0 = Math.max(0, x - r), x1 = Math.min(width - 1, x + r);
@@ -226,7 +228,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       const e = e1 > e2 ? e1 : e2;
       if (e < low && !settings.everyPixel) continue;
       const k = classify(al, aa, ab, sl, sa, sb);
-      const s = e - (k === PIXEL_COLOUR_SHIFT ? EDGE_ALLOWANCE_COLOUR * contrast + BLEED_ALLOWANCE_COLOUR * art.wideContrast[pix] : EDGE_ALLOWANCE * contrast + BLEED_ALLOWANCE_INK * art.wideContrast[pix]);
+      const s = e - (k === PIXEL_COLOUR_SHIFT ? EDGE_ALLOWANCE_COLOUR * contrast + BLEED_ALLOWANCE_COLOUR * bleed : inkAllowance);
       // Small print is dark type on a light ground (the ground's lightness dominates around it); in type
       // reversed out of a dark solid the scan's softness fills strokes in, which looks much like a change.
       const structuralInk = k !== PIXEL_COLOUR_SHIFT && nearType && e - EDGE_ALLOWANCE_STRUCTURAL * contrast >= peak;

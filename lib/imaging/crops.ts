@@ -3,7 +3,7 @@
 // profile threshold), all over the same rectangle of the artwork page.
 import { PNG } from "pngjs";
 import { processRect, type SheetContext } from "./bands";
-import { cropRgba, intersect, mmToPx, type PxRect } from "./raster";
+import { cropRgba, intersect, mmToPx, rgbToRgba, type PxRect } from "./raster";
 import type { Finding } from "./types";
 
 /** Longest side of a crop in pixels; larger areas are cut around the finding's centre. */
@@ -30,9 +30,8 @@ export async function makeCrops(
   const art = ctx.artwork;
   const rect = cropRectFor(f, dpi, art.width, art.height);
   const artRgba = cropRgba(art.data, art.width, rect);
-  const scanRgb = ctx.source(rect).rgb;
-  const scanRgba = new Uint8Array(rect.w * rect.h * 4);
-  for (let i = 0; i < rect.w * rect.h; i++) scanRgba.set([scanRgb[i * 3], scanRgb[i * 3 + 1], scanRgb[i * 3 + 2], 255], i * 4);
+  // Copied out at once: the source reuses its buffers, and processRect below asks it again.
+  const scanRgba = rgbToRgba(ctx.source(rect).rgb);
   const diff = await processRect(ctx, rect, true);
   const heat = new Uint8Array(rect.w * rect.h * 4);
   const low = ctx.lowDeltaE00, span = Math.max(1e-6, 2 * peakDeltaE00 - low);

@@ -72,7 +72,7 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
   const stageTimes = { normalise: 0, compare: 0 };
   const ctx: SheetContext = {
     artwork,
-    source: alignedScanSource(scan, alignment, artwork, true),
+    source: alignedScanSource(scan, alignment, artwork),
     model: fit.model,
     sigmaPx,
     radiusPx,
@@ -111,7 +111,6 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
     pageMm: { widthMm: artwork.widthMm, heightMm: artwork.heightMm },
   });
   if (input.crops) {
-    ctx.source = alignedScanSource(scan, alignment, artwork);
     for (const f of findings.slice(0, MAX_CROPPED_FINDINGS)) f.crops = await makeCrops(ctx, f, dpi, peak);
   }
   timings.findings += performance.now() - started;

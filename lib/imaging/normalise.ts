@@ -5,7 +5,7 @@
 import sharp from "sharp";
 import { deltaE00, srgbToLab } from "./colour";
 import { evaluateModel, fitColourModel, identityModel, type ColourModel } from "./colour-model";
-import type { AffineMap, PxRect } from "./raster";
+import { rgbaToRgb, rgbToRgba, type AffineMap, type PxRect } from "./raster";
 import { sampleFlatPairs, type SamplePairs } from "./samples";
 import type { RgbaImage } from "./types";
 
@@ -24,22 +24,7 @@ export function lowPassSigmaPx(dpi: number): number {
  * on two clean B2 sheets) and the same at 300 dpi (none on four). Returns RGBA with alpha 255.
  */
 export async function lowPass(rgba: Uint8Array, width: number, height: number, sigmaPx: number): Promise<Uint8Array> {
-  const n = width * height;
-  const rgb = new Uint8Array(n * 3);
-  for (let i = 0, p = 0, q = 0; i < n; i++, p += 4, q += 3) {
-    rgb[q] = rgba[p];
-    rgb[q + 1] = rgba[p + 1];
-    rgb[q + 2] = rgba[p + 2];
-  }
-  const blurred = await lowPassRgb(rgb, width, height, sigmaPx);
-  const out = new Uint8Array(n * 4);
-  for (let i = 0, p = 0, q = 0; i < n; i++, p += 4, q += 3) {
-    out[p] = blurred[q];
-    out[p + 1] = blurred[q + 1];
-    out[p + 2] = blurred[q + 2];
-    out[p + 3] = 255;
-  }
-  return out;
+  return rgbToRgba(await lowPassRgb(rgbaToRgb(rgba), width, height, sigmaPx));
 }
 
 /**

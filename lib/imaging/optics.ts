@@ -32,7 +32,7 @@ export async function estimateOpticalBlur(
   const side = WINDOW + 2 * margin;
   const sites = edgeSites(artwork, inspectPx, margin);
   if (sites.length < 4) return 0;
-  // All windows side by side in one mosaic, so each trial is one blur call; blur crossing from one window into
+  // All windows side by side in one mosaic, so each trial blurs one image; blur crossing from one window into
   // the next reaches only the margins, and only window cores are scored.
   const mosaicW = side * sites.length, n = mosaicW * side;
   const art = new Uint8Array(n * 4), scanned = new Uint8Array(n * 4);

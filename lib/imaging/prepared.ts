@@ -140,11 +140,7 @@ function localContrast(lab: Float32Array, w: number, h: number, k: number, out: 
     verticalExtent(lo[c], w, h, k, false);
     verticalExtent(hi[c], w, h, k, true);
   }
-  for (let i = 0; i < n; i++) {
-    const dl = hi[0][i] - lo[0][i], da = hi[1][i] - lo[1][i], db = hi[2][i] - lo[2][i];
-    const e = Math.sqrt(dl * dl + da * da + db * db);
-    out[i] = e >= 255 ? 255 : e | 0;
-  }
+  out.set(extentOf(lo, hi, n));
   if (lightGround) lightGroundOf(lab, w, h, k, lo[0], hi[0], lightGround);
 }
 
@@ -183,13 +179,20 @@ function blockContrast(lab: Float32Array, w: number, h: number, k: number): Uint
     verticalExtent(lo[c], bw, bh, kb, false);
     verticalExtent(hi[c], bw, bh, kb, true);
   }
-  const blockOut = new Uint8Array(nb);
-  for (let b = 0; b < nb; b++) {
-    const e = Math.hypot(hi[0][b] - lo[0][b], hi[1][b] - lo[1][b], hi[2][b] - lo[2][b]);
-    blockOut[b] = e >= 255 ? 255 : e | 0;
-  }
+  const blockOut = extentOf(lo, hi, nb);
   const out = new Uint8Array(w * h);
   for (let y = 0; y < h; y++) for (let x = 0; x < w; x++) out[y * w + x] = blockOut[(y >> 1) * bw + (x >> 1)];
+  return out;
+}
+
+/** The diagonal of the L*, a*, b* ranges from per-channel minima and maxima, floored to whole units up to 255. */
+function extentOf(lo: Float32Array[], hi: Float32Array[], n: number): Uint8Array {
+  const out = new Uint8Array(n);
+  for (let i = 0; i < n; i++) {
+    const dl = hi[0][i] - lo[0][i], da = hi[1][i] - lo[1][i], db = hi[2][i] - lo[2][i];
+    const e = Math.sqrt(dl * dl + da * da + db * db);
+    out[i] = e >= 255 ? 255 : e | 0;
+  }
   return out;
 }
 

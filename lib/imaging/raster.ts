@@ -49,6 +49,29 @@ export function intersect(a: PxRect, b: PxRect): PxRect {
   return { x: x0, y: y0, w: Math.max(0, x1 - x0), h: Math.max(0, y1 - y0) };
 }
 
+/** RGB (3 bytes a pixel) of RGBA pixels, alpha dropped. */
+export function rgbaToRgb(rgba: Uint8Array | Uint8ClampedArray): Uint8Array {
+  const n = rgba.length / 4, out = new Uint8Array(n * 3);
+  for (let i = 0, p = 0, q = 0; i < n; i++, p += 4, q += 3) {
+    out[q] = rgba[p];
+    out[q + 1] = rgba[p + 1];
+    out[q + 2] = rgba[p + 2];
+  }
+  return out;
+}
+
+/** RGBA (alpha 255) of RGB pixels. */
+export function rgbToRgba(rgb: Uint8Array): Uint8Array {
+  const n = rgb.length / 3, out = new Uint8Array(n * 4);
+  for (let i = 0, p = 0, q = 0; i < n; i++, p += 4, q += 3) {
+    out[p] = rgb[q];
+    out[p + 1] = rgb[q + 1];
+    out[p + 2] = rgb[q + 2];
+    out[p + 3] = 255;
+  }
+  return out;
+}
+
 /** Copies a rectangle of an RGBA image into a new buffer (no bounds growth: the rectangle must fit). */
 export function cropRgba(data: Uint8Array | Uint8ClampedArray, width: number, r: PxRect): Uint8Array {
   const out = new Uint8Array(r.w * r.h * 4);
