@@ -16,12 +16,31 @@ export type AlignedScanSource = (rect: PxRect) => { rgb: Uint8Array; mask: Uint8
  * The scan through its alignment, resampled one rectangle at a time: no full-size warped copy is held. Each
  * rectangle overwrites the previous one's buffers, so a caller uses a result before asking for the next.
  */
-export function alignedScanSource(scan: RgbaImage, alignment: Alignment, artwork: RgbaImage): AlignedScanSource {
-  const buffers = new WarpBuffers();
+export function alignedScanSource(scan: RgbaImage, alignment: Alignment, artwork: RgbaImage, buffers = new WarpBuffers()): AlignedScanSource {
   return (rect) => {
     const { image, mask } = warpScanToArtwork(scan, alignment, artwork, rect, buffers, 3);
     return { rgb: image.data as Uint8Array, mask };
   };
+}
+
+/** The reusable buffers of one sheet's bands. */
+export interface SheetScratch {
+  warp: WarpBuffers;
+  compare: CompareScratch;
+}
+
+/**
+ * Buffers kept per thread between sheets and lent to one inspection at a time (inspections in one thread may
+ * interleave at their awaits): fresh ones for every sheet cost page faults and garbage collections.
+ */
+const idleScratch: SheetScratch[] = [];
+
+export function borrowScratch(): SheetScratch {
+  return idleScratch.pop() ?? { warp: new WarpBuffers(), compare: new CompareScratch() };
+}
+
+export function returnScratch(scratch: SheetScratch): void {
+  if (idleScratch.length < 2) idleScratch.push(scratch);
 }
 
 export interface SheetContext {
@@ -103,7 +122,7 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
  * by the scan with a margin (`erode` px) so that the low-pass never mixes in the empty area beyond the scan.
  */
 function inspectMask(ctx: SheetContext, core: PxRect, ext: PxRect, mask: Uint8Array, erode: number): Uint8Array {
-  const out = new Uint8Array(core.w * core.h);
+  const out = ctx.scratch.inspectMask(core.w * core.h);
   const area = intersect(core, ctx.inspectPx);
   // The covered part of a row is one run (the scan's footprint is a convex quadrilateral): keep its ends.
   const lo = new Int32Array(ext.h).fill(ext.w), hi = new Int32Array(ext.h).fill(-1);

@@ -104,6 +104,15 @@ export class CompareScratch {
   readonly labKeys = new Int32Array(LAB_CACHE_SLOTS).fill(-1);
   readonly labValues = new Float32Array(LAB_CACHE_SLOTS * 3);
 
+  private inspect = new Uint8Array(0);
+  /** The band's inspect mask (zeroed), overwritten by the next band. */
+  inspectMask(n: number): Uint8Array {
+    if (this.inspect.length < n) this.inspect = new Uint8Array(n);
+    const out = this.inspect.subarray(0, n);
+    out.fill(0);
+    return out;
+  }
+
   private normalised = new Uint8Array(0);
   /** The band's normalised scan (RGBA), overwritten by the next band. */
   normalisedScan(n: number): Uint8Array {

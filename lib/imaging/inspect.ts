@@ -1,8 +1,7 @@
 // The inspection of one press sheet: align → normalise → compare → findings. The CLI and the worker call
 // exactly this. Pure: typed arrays in, plain objects out; safe inside a worker thread (no shared state).
 import { alignScan } from "./align";
-import { alignedScanSource, haloPx, processRect, type SheetContext } from "./bands";
-import { CompareScratch } from "./compare";
+import { alignedScanSource, borrowScratch, haloPx, processRect, returnScratch, type SheetContext } from "./bands";
 import { makeCrops } from "./crops";
 import { RegionCollector, regionsToFindings } from "./findings";
 import { fitNormalisation, lowPassSigmaPx } from "./normalise";
@@ -13,6 +12,7 @@ import {
   ImagingError,
   type Alignment,
   type ArtworkRaster,
+  type Finding,
   type InspectionProgress,
   type InspectionResult,
   type RgbaImage,
@@ -69,51 +69,27 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
   const opticalBlurPx = await estimateOpticalBlur(artwork, scan, alignment, fit.model, sigmaPx, inspectPx);
   timings.normalise += performance.now() - started;
 
-  const stageTimes = { normalise: 0, compare: 0 };
-  const ctx: SheetContext = {
-    artwork,
-    source: alignedScanSource(scan, alignment, artwork),
-    model: fit.model,
-    sigmaPx,
-    radiusPx,
-    windows: { opticalBlurPx, sigmaPx, radiusPx, reachPx: radiusPx + Math.ceil(2 * sigmaPx) },
-    lowDeltaE00: Math.max(1, 0.5 * peak),
-    peakDeltaE00: peak,
-    inspectPx,
-    excludedPx: profile.excludedAreasMm.map((r) => rectMmToPx(r, dpi, artwork.width, artwork.height)),
-    scratch: new CompareScratch(),
-    timings: stageTimes,
-  };
-  const collector = new RegionCollector(artwork.width, peak);
-  const bandRows = Math.max(64, Math.floor(BAND_PIXELS / artwork.width), haloPx(ctx) * 4);
-  const yEnd = inspectPx.y + inspectPx.h;
-  for (let y = inspectPx.y; y < yEnd; y += bandRows) {
-    const rows = Math.min(bandRows, yEnd - y);
-    const diff = await processRect(ctx, { x: 0, y, w: artwork.width, h: rows });
-    started = performance.now();
-    collector.addBand(diff, rows, y);
-    timings.findings += performance.now() - started;
-    progress("compare", 20 + (70 * (y + rows - inspectPx.y)) / Math.max(1, inspectPx.h));
+  const scratch = borrowScratch();
+  let findings: Finding[];
+  try {
+    const ctx: SheetContext = {
+      artwork,
+      source: alignedScanSource(scan, alignment, artwork, scratch.warp),
+      model: fit.model,
+      sigmaPx,
+      radiusPx,
+      windows: { opticalBlurPx, sigmaPx, radiusPx, reachPx: radiusPx + Math.ceil(2 * sigmaPx) },
+      lowDeltaE00: Math.max(1, 0.5 * peak),
+      peakDeltaE00: peak,
+      inspectPx,
+      excludedPx: profile.excludedAreasMm.map((r) => rectMmToPx(r, dpi, artwork.width, artwork.height)),
+      scratch: scratch.compare,
+      timings: { normalise: 0, compare: 0 },
+    };
+    findings = await compareSheet(ctx, artwork, profile, { ups, crops: input.crops ?? false }, timings, progress);
+  } finally {
+    returnScratch(scratch);
   }
-  timings.normalise += stageTimes.normalise;
-  timings.compare += stageTimes.compare;
-
-  progress("findings", 90);
-  started = performance.now();
-  const minAreaMm2 = (Math.PI / 4) * profile.minDefectMm ** 2;
-  const allRegions = collector.regions();
-  const { findings } = regionsToFindings(allRegions, {
-    dpi,
-    minStrongPx: Math.max(3, Math.round((STRONG_SHARE * minAreaMm2) / (25.4 / dpi) ** 2)),
-    minAreaMm2,
-    mergeMm: Math.max(0.6, 2 * profile.minDefectMm),
-    ups,
-    pageMm: { widthMm: artwork.widthMm, heightMm: artwork.heightMm },
-  });
-  if (input.crops) {
-    for (const f of findings.slice(0, MAX_CROPPED_FINDINGS)) f.crops = await makeCrops(ctx, f, dpi, peak);
-  }
-  timings.findings += performance.now() - started;
   progress("findings", 100);
   for (const k of Object.keys(timings)) timings[k] = Math.round(timings[k] * 10) / 10;
   return {
@@ -123,6 +99,50 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
     findings,
     timingsMs: timings,
   };
+}
+
+/** Every band of the inspected area through normalise and compare, then the regions into findings. */
+async function compareSheet(
+  ctx: SheetContext,
+  artwork: ArtworkRaster,
+  profile: ToleranceProfile,
+  options: { ups?: UpsLayout; crops: boolean },
+  timings: Record<string, number>,
+  progress: (stage: InspectionProgress["stage"], percent: number) => void,
+): Promise<Finding[]> {
+  const { inspectPx, peakDeltaE00: peak } = ctx;
+  const dpi = artwork.dpi;
+  const collector = new RegionCollector(artwork.width, peak);
+  const bandRows = Math.max(64, Math.floor(BAND_PIXELS / artwork.width), haloPx(ctx) * 4);
+  const yEnd = inspectPx.y + inspectPx.h;
+  let started: number;
+  for (let y = inspectPx.y; y < yEnd; y += bandRows) {
+    const rows = Math.min(bandRows, yEnd - y);
+    const diff = await processRect(ctx, { x: 0, y, w: artwork.width, h: rows });
+    started = performance.now();
+    collector.addBand(diff, rows, y);
+    timings.findings += performance.now() - started;
+    progress("compare", 20 + (70 * (y + rows - inspectPx.y)) / Math.max(1, inspectPx.h));
+  }
+  timings.normalise += ctx.timings.normalise;
+  timings.compare += ctx.timings.compare;
+
+  progress("findings", 90);
+  started = performance.now();
+  const minAreaMm2 = (Math.PI / 4) * profile.minDefectMm ** 2;
+  const { findings } = regionsToFindings(collector.regions(), {
+    dpi,
+    minStrongPx: Math.max(3, Math.round((STRONG_SHARE * minAreaMm2) / (25.4 / dpi) ** 2)),
+    minAreaMm2,
+    mergeMm: Math.max(0.6, 2 * profile.minDefectMm),
+    ups: options.ups,
+    pageMm: { widthMm: artwork.widthMm, heightMm: artwork.heightMm },
+  });
+  if (options.crops) {
+    for (const f of findings.slice(0, MAX_CROPPED_FINDINGS)) f.crops = await makeCrops(ctx, f, dpi, peak);
+  }
+  timings.findings += performance.now() - started;
+  return findings;
 }
 
 /** The alignment of a scan already in the artwork's pixel grid (same size and resolution). */
