@@ -6,6 +6,7 @@ import { makeCrops } from "./crops";
 import { RegionCollector, regionsToFindings } from "./findings";
 import { fitNormalisation, lowPassSigmaPx } from "./normalise";
 import { estimateOpticalBlur } from "./optics";
+import { CACHE_MAX_PIXELS } from "./prepared";
 import { validateProfile } from "./profiles";
 import { mmToPx, pxRectToMm, rectMmToPx, rectMmToPxInside } from "./raster";
 import {
@@ -33,8 +34,13 @@ export interface InspectSheetInput {
   alignment?: Alignment;
 }
 
-/** Band height: about this many pixels a band keeps the working set small on any sheet size. */
-const BAND_PIXELS = 1 << 21;
+/**
+ * Pixels a band: up to 8 MP (a B2 sheet at 100 dpi in one band: each band costs a low-pass call, a screen and
+ * its halo rows, 10 % of a sheet's CPU at 2 MP a band); 2 MP where the artwork is prepared band by band too
+ * (pages over CACHE_MAX_PIXELS), which keeps a B1 sheet at 300 dpi within its memory bound.
+ */
+const BAND_PIXELS = 1 << 23;
+const LARGE_PAGE_BAND_PIXELS = 1 << 21;
 /**
  * Share of the smallest defect's area whose pixels must reach the profile's ΔE00 (the second level): a
  * 0.3 mm dot of pen ink on a light tint reaches it over only about half its area once low-passed.
@@ -113,7 +119,8 @@ async function compareSheet(
   const { inspectPx, peakDeltaE00: peak } = ctx;
   const dpi = artwork.dpi;
   const collector = new RegionCollector(artwork.width, peak);
-  const bandRows = Math.max(64, Math.floor(BAND_PIXELS / artwork.width), haloPx(ctx) * 4);
+  const bandPixels = artwork.width * artwork.height > CACHE_MAX_PIXELS ? LARGE_PAGE_BAND_PIXELS : BAND_PIXELS;
+  const bandRows = Math.max(64, Math.floor(bandPixels / artwork.width), haloPx(ctx) * 4);
   const yEnd = inspectPx.y + inspectPx.h;
   let started: number;
   for (let y = inspectPx.y; y < yEnd; y += bandRows) {
