@@ -108,10 +108,42 @@ export function fitColourModel(pairs: SamplePairs): ColourModel {
   const curved = (r: number, g: number, b: number) => [interp(curves[0], r), interp(curves[1], g), interp(curves[2], b)];
   const points = groups.map((gr) => ({ x: curved(gr.scan[0], gr.scan[1], gr.scan[2]).map((v) => v / 255), y: gr.art.map((v) => v / 255) }));
   const beta = fitPolynomial(points);
-  // The table at its nodes: tone curves, then the polynomial. Nodes fall on whole 8-bit codes only at the ends,
-  // so the curves are sampled once per node index (LUT_SIZE values a channel), not per node; the terms are those
-  // of features(), unrolled, since the table has 36 000 nodes.
   const nodeCurve = [0, 1, 2].map((c) => Float64Array.from({ length: LUT_SIZE }, (_, i) => interp(curves[c], i * STEP) / 255));
+  const lut = polynomialTable(nodeCurve, beta);
+  // Local corrections: what the table still gets wrong at each artwork colour, spread around its scan colour
+  // by a Gaussian kernel and fading to nothing away from the sheet's colours; a few rounds, since neighbouring
+  // colours' kernels overlap.
+  const reach = Math.ceil((3 * KERNEL_SIGMA) / STEP);
+  // The Gaussian kernel is separable: one weight per node along each axis, the same in every round.
+  const kernels = groups.map((gr) =>
+    gr.scan.map((v) => {
+      const centre = Math.round(v / STEP);
+      const from = Math.max(0, centre - reach), to = Math.min(LUT_SIZE - 1, centre + reach);
+      return { from, w: Float64Array.from({ length: to - from + 1 }, (_, k) => Math.exp(-(((from + k) * STEP - v) ** 2) / (2 * KERNEL_SIGMA * KERNEL_SIGMA))) };
+    }),
+  );
+  const den = new Float64Array(LUT_SIZE ** 3);
+  for (let gi = 0; gi < groups.length; gi++) spreadGroup(kernels[gi], den, null, gi);
+  const num = new Float64Array(LUT_SIZE ** 3 * 3);
+  const res = new Float64Array(groups.length * 3);
+  for (let round = 0; round < REFINE_ROUNDS; round++) {
+    groups.forEach((gr, gi) => {
+      const predicted = interpolate(lut, gr.scan[0], gr.scan[1], gr.scan[2]);
+      for (let c = 0; c < 3; c++) res[gi * 3 + c] = gr.art[c] - predicted[c];
+    });
+    num.fill(0);
+    for (let gi = 0; gi < groups.length; gi++) spreadGroup(kernels[gi], num, res, gi);
+    addCorrections(lut, num, den);
+  }
+  for (let i = 0; i < lut.length; i++) lut[i] = Math.min(255, Math.max(0, lut[i]));
+  return { lut };
+}
+
+/**
+ * The table at its nodes: tone curves (sampled once per node index, since nodes fall on whole 8-bit codes only at
+ * the ends), then the polynomial, whose terms are those of features() unrolled: the table has 36 000 nodes.
+ */
+function polynomialTable(nodeCurve: Float64Array[], beta: Float64Array): Float32Array {
   const lut = new Float32Array(LUT_SIZE ** 3 * 3);
   for (let r = 0, o = 0; r < LUT_SIZE; r++) {
     const x0 = nodeCurve[0][r];
@@ -129,50 +161,37 @@ export function fitColourModel(pairs: SamplePairs): ColourModel {
       }
     }
   }
-  // Local corrections: what the table still gets wrong at each artwork colour, spread around its scan colour
-  // by a Gaussian kernel and fading to nothing away from the sheet's colours; a few rounds, since neighbouring
-  // colours' kernels overlap.
-  const reach = Math.ceil((3 * KERNEL_SIGMA) / STEP);
-  // The Gaussian kernel is separable: one weight per node along each axis, the same in every round.
-  const kernels = groups.map((gr) =>
-    gr.scan.map((v) => {
-      const centre = Math.round(v / STEP);
-      const from = Math.max(0, centre - reach), to = Math.min(LUT_SIZE - 1, centre + reach);
-      return { from, w: Float64Array.from({ length: to - from + 1 }, (_, k) => Math.exp(-(((from + k) * STEP - v) ** 2) / (2 * KERNEL_SIGMA * KERNEL_SIGMA))) };
-    }),
-  );
-  const spread = (each: (node: number, w: number, group: number) => void) => {
-    groups.forEach((_, gi) => {
-      const [kr, kg, kb] = kernels[gi];
-      for (let r = 0; r < kr.w.length; r++)
-        for (let g = 0; g < kg.w.length; g++)
-          for (let b = 0; b < kb.w.length; b++) {
-            const w = kr.w[r] * kg.w[g] * kb.w[b];
-            if (w >= 1e-4) each(((kr.from + r) * LUT_SIZE + kg.from + g) * LUT_SIZE + kb.from + b, w, gi);
-          }
-    });
-  };
-  const den = new Float64Array(LUT_SIZE ** 3);
-  spread((n, w) => { den[n] += w; });
-  const res = new Float64Array(groups.length * 3);
-  for (let round = 0; round < REFINE_ROUNDS; round++) {
-    groups.forEach((gr, gi) => {
-      const predicted = interpolate(lut, gr.scan[0], gr.scan[1], gr.scan[2]);
-      for (let c = 0; c < 3; c++) res[gi * 3 + c] = gr.art[c] - predicted[c];
-    });
-    const num = new Float64Array(LUT_SIZE ** 3 * 3);
-    spread((n, w, gi) => {
-      num[n * 3] += w * res[gi * 3];
-      num[n * 3 + 1] += w * res[gi * 3 + 1];
-      num[n * 3 + 2] += w * res[gi * 3 + 2];
-    });
-    for (let n = 0; n < den.length; n++) {
-      if (den[n] === 0) continue;
-      for (let c = 0; c < 3; c++) lut[n * 3 + c] += num[n * 3 + c] / (den[n] + KERNEL_FLOOR);
-    }
+  return lut;
+}
+
+function addCorrections(lut: Float32Array, num: Float64Array, den: Float64Array): void {
+  for (let n = 0; n < den.length; n++) {
+    if (den[n] === 0) continue;
+    for (let c = 0; c < 3; c++) lut[n * 3 + c] += num[n * 3 + c] / (den[n] + KERNEL_FLOOR);
   }
-  for (let i = 0; i < lut.length; i++) lut[i] = Math.min(255, Math.max(0, lut[i]));
-  return { lut };
+}
+
+/**
+ * One colour group's Gaussian weights over the table's nodes, added to `den` (res null) or, times the group's
+ * residuals, to `num` (3 a node). A plain loop, not a callback a node: a double passed to a call is boxed, and
+ * that cost 38 MB of garbage a sheet.
+ */
+function spreadGroup(kernel: { from: number; w: Float64Array }[], into: Float64Array, res: Float64Array | null, gi: number): void {
+  const [kr, kg, kb] = kernel;
+  const r0 = res ? res[gi * 3] : 0, r1 = res ? res[gi * 3 + 1] : 0, r2 = res ? res[gi * 3 + 2] : 0;
+  for (let r = 0; r < kr.w.length; r++)
+    for (let g = 0; g < kg.w.length; g++)
+      for (let b = 0; b < kb.w.length; b++) {
+        const w = kr.w[r] * kg.w[g] * kb.w[b];
+        if (w < 1e-4) continue;
+        const n = ((kr.from + r) * LUT_SIZE + kg.from + g) * LUT_SIZE + kb.from + b;
+        if (res === null) into[n] += w;
+        else {
+          into[n * 3] += w * r0;
+          into[n * 3 + 1] += w * r1;
+          into[n * 3 + 2] += w * r2;
+        }
+      }
 }
 
 interface ColourGroup {
@@ -196,25 +215,51 @@ function groupByArtwork(pairs: SamplePairs): ColourGroup[] {
   for (let i = 0; i < n; i++) order[fill[keys[i]]++] = i;
   const groups: ColourGroup[] = [];
   const values = new Float32Array(n);
-  const channelMedian = (arr: Float32Array, from: number, to: number, c: number) => {
-    for (let j = from; j < to; j++) values[j - from] = arr[order[j] * 3 + c];
-    return median(values.subarray(0, to - from));
-  };
   for (let k = 0; k < starts.length - 1; k++) {
     const from = starts[k], to = starts[k + 1];
     if (to - from < MIN_GROUP) continue;
-    groups.push({
-      art: [0, 1, 2].map((c) => channelMedian(pairs.flatArt, from, to, c)),
-      scan: [0, 1, 2].map((c) => channelMedian(pairs.flatScan, from, to, c)),
-      count: to - from,
-    });
+    const art = [0, 0, 0], scan = [0, 0, 0];
+    for (let c = 0; c < 3; c++) {
+      art[c] = groupMedian(pairs.flatArt, order, from, to, c, values);
+      scan[c] = groupMedian(pairs.flatScan, order, from, to, c, values);
+    }
+    groups.push({ art, scan, count: to - from });
   }
   return groups;
 }
 
-/** Upper median of a typed array, sorted in place. */
+/** Upper median of channel c over the samples order[from..to), selected in `work`. */
+function groupMedian(arr: Float32Array, order: Int32Array, from: number, to: number, c: number, work: Float32Array): number {
+  const n = to - from;
+  for (let j = 0; j < n; j++) work[j] = arr[order[from + j] * 3 + c];
+  return select(work, n, n >> 1);
+}
+
+/** The k-th smallest of v[0..n) (Hoare's selection, in place): the upper median for k = n >> 1, without a sort. */
+function select(v: Float32Array, n: number, k: number): number {
+  let lo = 0, hi = n - 1;
+  while (lo < hi) {
+    const pivot = v[(lo + hi) >> 1];
+    let i = lo, j = hi;
+    while (i <= j) {
+      while (v[i] < pivot) i++;
+      while (v[j] > pivot) j--;
+      if (i <= j) {
+        const t = v[i]; v[i] = v[j]; v[j] = t;
+        i++;
+        j--;
+      }
+    }
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else return v[k];
+  }
+  return v[k];
+}
+
+/** Upper median of a typed array. */
 function median(v: Float32Array): number {
-  return v.sort()[v.length >> 1];
+  return select(v, v.length, v.length >> 1);
 }
 
 /** Trilinear value of the table at a scan colour (0–255 floats), unclamped. */

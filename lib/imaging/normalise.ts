@@ -72,13 +72,12 @@ function measureDrift(pairs: SamplePairs, model: ColourModel): { drift: number; 
   const before = new Float32Array(n);
   const after = new Float32Array(n);
   for (let j = 0; j < n; j++) {
-    const i = j * step;
-    const a = pairs.flatArt.subarray(i * 3, i * 3 + 3);
-    const s = pairs.flatScan.subarray(i * 3, i * 3 + 3);
-    const [l1, a1, b1] = srgbToLab(a[0] / 255, a[1] / 255, a[2] / 255);
-    const [l2, a2, b2] = srgbToLab(s[0] / 255, s[1] / 255, s[2] / 255);
+    const i = j * 3 * step;
+    const a = pairs.flatArt, s = pairs.flatScan;
+    const [l1, a1, b1] = srgbToLab(a[i] / 255, a[i + 1] / 255, a[i + 2] / 255);
+    const [l2, a2, b2] = srgbToLab(s[i] / 255, s[i + 1] / 255, s[i + 2] / 255);
     before[j] = deltaE00(l1, a1, b1, l2, a2, b2);
-    const m = evaluateModel(model, s[0], s[1], s[2]);
+    const m = evaluateModel(model, s[i], s[i + 1], s[i + 2]);
     const [l3, a3, b3] = srgbToLab(m[0] / 255, m[1] / 255, m[2] / 255);
     after[j] = deltaE00(l1, a1, b1, l3, a3, b3);
   }

@@ -101,12 +101,13 @@ export function sampleFlatPairs(
     const xs = Math.round(m[0] * x + m[1] * y + m[2]);
     const ys = Math.round(m[3] * x + m[4] * y + m[5]);
     if (xs - kScan < 0 || ys - kScan < 0 || xs + kScan >= sw || ys + kScan >= sh) continue;
-    allArt.set(grid.mean.subarray(i * 3, i * 3 + 3), allCount * 3);
-    windowMean(sd, sw, xs, ys, kScan, allScan, allCount * 3);
+    const a = allCount * 3, f = flatCount * 3;
+    allArt[a] = grid.mean[i * 3]; allArt[a + 1] = grid.mean[i * 3 + 1]; allArt[a + 2] = grid.mean[i * 3 + 2];
+    windowMean(sd, sw, xs, ys, kScan, allScan, a);
     allCount++;
     if (grid.flat[i] === 0) continue;
-    flatArt.set(grid.pixel.subarray(i * 3, i * 3 + 3), flatCount * 3);
-    flatScan.set(allScan.subarray((allCount - 1) * 3, allCount * 3), flatCount * 3);
+    flatArt[f] = grid.pixel[i * 3]; flatArt[f + 1] = grid.pixel[i * 3 + 1]; flatArt[f + 2] = grid.pixel[i * 3 + 2];
+    flatScan[f] = allScan[a]; flatScan[f + 1] = allScan[a + 1]; flatScan[f + 2] = allScan[a + 2];
     flatCount++;
   }
   return { flatArt, flatScan, flatCount, allArt, allScan, allCount };
