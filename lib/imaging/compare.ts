@@ -97,10 +97,8 @@ export interface BandDifference {
 /** Reusable buffers of one comparison (one per sheet; never shared between threads). */
 export class CompareScratch {
   private screen = new Uint8Array(0);
-  private labScan = new Float32Array(0);
-  private labDone = new Uint8Array(0);
   private results = { deltaE: new Float32Array(0), score: new Float32Array(0), kind: new Uint8Array(0), structural: new Uint8Array(0) };
-  /** Direct-mapped cache of CIELAB by 24-bit RGB: a normalised, low-passed scan repeats its colours a lot. */
+  /** Direct-mapped cache of CIELAB by 24-bit RGB: low-passed artwork and scan repeat their colours a lot. */
   readonly labKeys = new Int32Array(LAB_CACHE_SLOTS).fill(-1);
   readonly labValues = new Float32Array(LAB_CACHE_SLOTS * 3);
 
@@ -125,17 +123,6 @@ export class CompareScratch {
     const out = this.screen.subarray(0, n);
     out.fill(0);
     return out;
-  }
-
-  /** The scan's CIELAB per pixel, filled on demand, and its "filled" flags (zeroed). */
-  lab(n: number): [Float32Array, Uint8Array] {
-    if (this.labDone.length < n) {
-      this.labScan = new Float32Array(n * 3);
-      this.labDone = new Uint8Array(n);
-    }
-    const done = this.labDone.subarray(0, n);
-    done.fill(0);
-    return [this.labScan.subarray(0, n * 3), done];
   }
 
   /** Zeroed per-pixel result arrays, valid until the next band: the caller consumes them before asking again. */
@@ -183,11 +170,12 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
     if (count === 0) return { deltaE, score, kind, structural, flagged: 0, candidates: 0 };
   }
   const r = settings.radiusPx;
-  // The scan's CIELAB only where it is looked at: screened pixels and, where they need the search, their
-  // neighbours within the registration radius (the artwork's is prepared once).
-  const [ls, done] = scratch.lab(width * rows);
-  const keys = scratch.labKeys, values = scratch.labValues, scan = band.scan;
-  const la = art.lab, contrastOf = art.contrast;
+  // CIELAB only where it is looked at (screened pixels and, where they need the search, their neighbours within
+  // the registration radius), for both images through one colour cache: reading a prepared CIELAB of the whole
+  // page (12 bytes a pixel) at the screened pixels cost more in memory traffic than the cache lookups.
+  const keys = scratch.labKeys, values = scratch.labValues, scan = band.scan, artLow = art.low;
+  const contrastOf = art.contrast, lightGround = art.lightGround, wideContrast = art.wideContrast;
+  const everyPixel = settings.everyPixel === true;
   const bound = (low / DE00_OVER_DEAB) ** 2;
   const peak = settings.peakDeltaE00;
   const inspect = band.inspect;
@@ -200,49 +188,51 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       const i = cy * width + x;
       if (inspect[i] === 0 || (screen !== null && screen[i * 4 + 3] === 0)) continue;
       candidates++;
-      const pix = y * width + x, p = pix * 3;
-      if (done[pix] === 0) { scanLab(scan, pix, ls, keys, values); done[pix] = 1; }
-      const sl = ls[p], sa = ls[p + 1], sb = ls[p + 2];
-      const al = la[p], aa = la[p + 1], ab = la[p + 2];
+      const pix = y * width + x;
+      let v = labSlot(scan, pix, keys, values);
+      const sl = values[v], sa = values[v + 1], sb = values[v + 2];
+      v = labSlot(artLow, pix, keys, values);
+      const al = values[v], aa = values[v + 1], ab = values[v + 2];
       const direct = (sl - al) ** 2 + (sa - aa) ** 2 + (sb - ab) ** 2;
-      if (direct < bound && !settings.everyPixel) continue;
+      if (direct < bound && !everyPixel) continue;
       // ΔE00 is at most 1.4 × ΔE*ab, and the best match is no farther than the pixel itself: where even the
       // direct difference cannot clear the pixel's allowance, no search can flag it. A pixel counts when ΔE00
       // less the edge allowance reaches the pixel level, or, near type on a light ground, when ΔE00 less the
       // structural allowance reaches the profile's level.
       const contrast = contrastOf[pix];
-      const nearType = art.lightGround[pix] === 1 && contrast >= STRUCTURAL_MIN_CONTRAST;
-      const bleed = art.wideContrast[pix];
+      const nearType = lightGround[pix] === 1 && contrast >= STRUCTURAL_MIN_CONTRAST;
+      const bleed = wideContrast[pix];
       const inkAllowance = EDGE_ALLOWANCE * contrast + BLEED_ALLOWANCE_INK * bleed;
       const edgeFloor = low + inkAllowance;
       const floor = nearType ? Math.min(edgeFloor, peak + EDGE_ALLOWANCE_STRUCTURAL * contrast) : edgeFloor;
-      if (DE00_OVER_DEAB * DE00_OVER_DEAB * direct < floor * floor && !settings.everyPixel) continue;
+      if (DE00_OVER_DEAB * DE00_OVER_DEAB * direct < floor * floor && !everyPixel) continue;
       const x0 = Math.max(0, x - r), x1 = Math.min(width - 1, x + r);
-      // Scan pixel against artwork neighbours, and artwork pixel against scan neighbours.
-      let best1 = direct, q1 = p, best2 = direct, q2 = p;
+      // Scan pixel against artwork neighbours (best match m1), and artwork pixel against scan neighbours (m2).
+      let best1 = direct, m1l = al, m1a = aa, m1b = ab;
+      let best2 = direct, m2l = sl, m2a = sa, m2b = sb;
       for (let yy = y0; yy <= y1 && (best1 >= bound || best2 >= bound); yy++) {
         for (let qi = yy * width + x0, qEnd = yy * width + x1; qi <= qEnd; qi++) {
-          const q = qi * 3;
-          if (done[qi] === 0) { scanLab(scan, qi, ls, keys, values); done[qi] = 1; }
-          const d1 = (sl - la[q]) ** 2 + (sa - la[q + 1]) ** 2 + (sb - la[q + 2]) ** 2;
-          if (d1 < best1) { best1 = d1; q1 = q; }
-          const d2 = (al - ls[q]) ** 2 + (aa - ls[q + 1]) ** 2 + (ab - ls[q + 2]) ** 2;
-          if (d2 < best2) { best2 = d2; q2 = q; }
+          v = labSlot(artLow, qi, keys, values);
+          const d1 = (sl - values[v]) ** 2 + (sa - values[v + 1]) ** 2 + (sb - values[v + 2]) ** 2;
+          if (d1 < best1) { best1 = d1; m1l = values[v]; m1a = values[v + 1]; m1b = values[v + 2]; }
+          v = labSlot(scan, qi, keys, values);
+          const d2 = (al - values[v]) ** 2 + (aa - values[v + 1]) ** 2 + (ab - values[v + 2]) ** 2;
+          if (d2 < best2) { best2 = d2; m2l = values[v]; m2a = values[v + 1]; m2b = values[v + 2]; }
         }
       }
       const worst = Math.sqrt(Math.max(best1 < bound ? 0 : best1, best2 < bound ? 0 : best2));
-      if (DE00_OVER_DEAB * worst < floor && !settings.everyPixel) continue;
-      const e1 = best1 < bound ? 0 : deltaE00(la[q1], la[q1 + 1], la[q1 + 2], sl, sa, sb);
-      const e2 = best2 < bound ? 0 : deltaE00(al, aa, ab, ls[q2], ls[q2 + 1], ls[q2 + 2]);
+      if (DE00_OVER_DEAB * worst < floor && !everyPixel) continue;
+      const e1 = best1 < bound ? 0 : deltaE00(m1l, m1a, m1b, sl, sa, sb);
+      const e2 = best2 < bound ? 0 : deltaE00(al, aa, ab, m2l, m2a, m2b);
       const e = e1 > e2 ? e1 : e2;
-      if (e < low && !settings.everyPixel) continue;
+      if (e < low && !everyPixel) continue;
       const k = classify(al, aa, ab, sl, sa, sb);
       const s = e - (k === PIXEL_COLOUR_SHIFT ? EDGE_ALLOWANCE_COLOUR * contrast + BLEED_ALLOWANCE_COLOUR * bleed : inkAllowance);
       // Small print is dark type on a light ground (the ground's lightness dominates around it); in type
       // reversed out of a dark solid the scan's softness fills strokes in, which looks much like a change.
       const structuralInk = k !== PIXEL_COLOUR_SHIFT && nearType && e - EDGE_ALLOWANCE_STRUCTURAL * contrast >= peak;
       if (structuralInk) structural[i] = k;
-      if (s < low && !structuralInk && !settings.everyPixel) continue;
+      if (s < low && !structuralInk && !everyPixel) continue;
       deltaE[i] = e;
       score[i] = s > 0 ? s : 0;
       if (s >= low) {
@@ -278,30 +268,27 @@ const M = SRGB_TO_XYZ;
 const M0 = M[0] / D65_WHITE[0], M1 = M[1] / D65_WHITE[0], M2 = M[2] / D65_WHITE[0];
 const M6 = M[6] / D65_WHITE[2], M7 = M[7] / D65_WHITE[2], M8 = M[8] / D65_WHITE[2];
 
-function labOf(rgba: Uint8Array, i: number, out: Float32Array): void {
+function labInto(rgba: Uint8Array, i: number, out: Float32Array, o: number): void {
   const lut = SRGB8_TO_LINEAR;
   const r = lut[rgba[i * 4]], g = lut[rgba[i * 4 + 1]], b = lut[rgba[i * 4 + 2]];
   const fx = labFFast(M0 * r + M1 * g + M2 * b);
   const fy = labFFast(M[3] * r + M[4] * g + M[5] * b);
   const fz = labFFast(M6 * r + M7 * g + M8 * b);
-  out[i * 3] = 116 * fy - 16;
-  out[i * 3 + 1] = 500 * (fx - fy);
-  out[i * 3 + 2] = 200 * (fy - fz);
+  out[o] = 116 * fy - 16;
+  out[o + 1] = 500 * (fx - fy);
+  out[o + 2] = 200 * (fy - fz);
 }
 
-/** CIELAB of scan pixel i into ls, through the direct-mapped cache. */
-function scanLab(scan: Uint8Array, i: number, ls: Float32Array, keys: Int32Array, values: Float32Array): void {
-  const key = (scan[i * 4] << 16) | (scan[i * 4 + 1] << 8) | scan[i * 4 + 2];
+/**
+ * Where the CIELAB of RGBA pixel i sits in `values` (3 a slot), computed into its cache slot when absent.
+ * Read it at once: the next lookup may take the slot over.
+ */
+function labSlot(rgba: Uint8Array, i: number, keys: Int32Array, values: Float32Array): number {
+  const key = (rgba[i * 4] << 16) | (rgba[i * 4 + 1] << 8) | rgba[i * 4 + 2];
   const slot = Math.imul(key, 0x9e3779b1) >>> 16;
-  if (keys[slot] === key) {
-    ls[i * 3] = values[slot * 3];
-    ls[i * 3 + 1] = values[slot * 3 + 1];
-    ls[i * 3 + 2] = values[slot * 3 + 2];
-    return;
+  if (keys[slot] !== key) {
+    labInto(rgba, i, values, slot * 3);
+    keys[slot] = key;
   }
-  labOf(scan, i, ls);
-  keys[slot] = key;
-  values[slot * 3] = ls[i * 3];
-  values[slot * 3 + 1] = ls[i * 3 + 1];
-  values[slot * 3 + 2] = ls[i * 3 + 2];
+  return slot * 3;
 }
