@@ -129,6 +129,17 @@ describe("inspectSheet on simulated sheets", () => {
     }
   });
 
+  it("gives each of two sheets inspected at once in one thread the findings it gets alone (band buffers are lent, not shared)", async () => {
+    const dotted = await simulateSheet(artwork, { photometric: PHOTOMETRY, geometry: { rotationDeg: 0.8 }, seed: 12, defects: [{ type: "dot", xMm: 40, yMm: 60, diameterMm: 1 }] });
+    const clean = await simulateSheet(artwork, { photometric: PHOTOMETRY, geometry: { rotationDeg: -0.6 }, seed: 13 });
+    const profile = getProfile("standard-food");
+    const run = (scan: typeof clean.scan) => inspectSheet({ artwork, scan, profile }).then((r) => ({ findings: r.findings, drift: r.drift }));
+    const alone = [await run(dotted.scan), await run(clean.scan)];
+    expect(alone[0].findings).toHaveLength(1);
+    expect(alone[1].findings).toEqual([]);
+    expect(await Promise.all([run(dotted.scan), run(clean.scan)])).toEqual(alone);
+  });
+
   it("reports progress through the stages and accepts a known alignment", async () => {
     const sim = await simulateSheet(artwork, { seed: 6 });
     const seen: InspectionProgress[] = [];
