@@ -94,7 +94,7 @@ export interface BandDifference {
   candidates: number;
 }
 
-/** Reusable buffers of one comparison (one per sheet; never shared between threads). */
+/** Reusable buffers of the comparison, used by one inspection at a time (bands.ts lends them; never shared between threads). */
 export class CompareScratch {
   private screen = new Uint8Array(0);
   private results = { deltaE: new Float32Array(0), score: new Float32Array(0), kind: new Uint8Array(0), structural: new Uint8Array(0) };

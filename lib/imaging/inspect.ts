@@ -1,5 +1,6 @@
 // The inspection of one press sheet: align → normalise → compare → findings. The CLI and the worker call
-// exactly this. Pure: typed arrays in, plain objects out; safe inside a worker thread (no shared state).
+// exactly this. Pure: typed arrays in, plain objects out; safe inside worker threads (nothing is shared between
+// threads: each keeps its own prepared artwork and band buffers).
 import { alignScan } from "./align";
 import { alignedScanSource, borrowScratch, haloPx, processRect, returnScratch, type SheetContext } from "./bands";
 import { makeCrops } from "./crops";
