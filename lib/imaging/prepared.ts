@@ -1,8 +1,9 @@
 // The artwork side of the comparison, prepared once per artwork and reused for every sheet of the run: its
-// low-pass, its CIELAB and the local contrast that sizes the edge allowance. None of it depends on the scan,
-// and a press run compares hundreds of sheets with one artwork, so a sheet pays only for its own side.
+// low-pass and the local contrast (from its CIELAB) that sizes the edge allowance. None of it depends on the
+// scan, and a press run compares hundreds of sheets with one artwork, so a sheet pays only for its own side.
 //
-// Prepared data is kept per thread for artworks up to CACHE_MAX_PIXELS (about 19 bytes a pixel); larger pages
+// Prepared data is kept per thread for artworks up to CACHE_MAX_PIXELS (7 bytes a pixel; the CIELAB is not kept:
+// the comparison takes it from the low-pass through its colour cache); larger pages
 // (a B1 sheet at 300 dpi is ~98 megapixels) are prepared band by band for each sheet instead, so memory stays
 // bounded. Never shared between threads.
 import { rgbaToLab } from "./colour";
@@ -34,9 +35,7 @@ export interface PreparedRect {
   rect: PxRect;
   /** Low-passed artwork, RGBA 8-bit. */
   low: Uint8Array;
-  /** CIELAB (D65) of `low`, 3 floats a pixel. */
-  lab: Float32Array;
-  /** ΔE*ab extent of `lab` within the registration radius plus the low-pass's reach (floored to whole units). */
+  /** ΔE*ab extent of the CIELAB (D65) of `low` within the registration radius plus the low-pass's reach (floored to whole units). */
   contrast: Uint8Array;
   /** The same within at least the reach plus BLEED_PX (on 2-pixel blocks, so up to 2 pixels more). */
   wideContrast: Uint8Array;
@@ -80,7 +79,7 @@ export function prepareLowPassed(low: Uint8Array, rect: PxRect, w: ContrastWindo
   localContrast(lab, rect.w, rect.h, w.reachPx, contrast, lightGround);
   const wideContrast = blockContrast(lab, rect.w, rect.h, w.reachPx + BLEED_PX);
   verticalScratch = new Float32Array(0);
-  return { rect, low, lab, contrast, wideContrast, lightGround };
+  return { rect, low, contrast, wideContrast, lightGround };
 }
 
 /** A rectangle of a prepared whole page (copied unless it is a run of full rows). */
@@ -91,7 +90,6 @@ function sub(whole: PreparedRect, r: PxRect): PreparedRect {
     return {
       rect: r,
       low: whole.low.subarray(a * 4, b * 4),
-      lab: whole.lab.subarray(a * 3, b * 3),
       contrast: whole.contrast.subarray(a, b),
       wideContrast: whole.wideContrast.subarray(a, b),
       lightGround: whole.lightGround.subarray(a, b),
@@ -101,7 +99,6 @@ function sub(whole: PreparedRect, r: PxRect): PreparedRect {
   const out: PreparedRect = {
     rect: r,
     low: new Uint8Array(n * 4),
-    lab: new Float32Array(n * 3),
     contrast: new Uint8Array(n),
     wideContrast: new Uint8Array(n),
     lightGround: new Uint8Array(n),
@@ -109,7 +106,6 @@ function sub(whole: PreparedRect, r: PxRect): PreparedRect {
   for (let row = 0; row < r.h; row++) {
     const from = (r.y + row) * W + r.x, to = row * r.w;
     out.low.set(whole.low.subarray(from * 4, (from + r.w) * 4), to * 4);
-    out.lab.set(whole.lab.subarray(from * 3, (from + r.w) * 3), to * 3);
     out.contrast.set(whole.contrast.subarray(from, from + r.w), to);
     out.wideContrast.set(whole.wideContrast.subarray(from, from + r.w), to);
     out.lightGround.set(whole.lightGround.subarray(from, from + r.w), to);
