@@ -133,8 +133,7 @@ function localContrast(lab: Float32Array, w: number, h: number, k: number, out: 
       hi[c].set(lineHi.subarray(0, w), y * w);
     }
     // Columns row by row (a column at a time would stride through memory).
-    verticalExtent(lo[c], w, h, k, false);
-    verticalExtent(hi[c], w, h, k, true);
+    verticalExtent(lo[c], hi[c], w, h, k);
   }
   out.set(extentOf(lo, hi, n));
   if (lightGround) lightGroundOf(lab, w, h, k, lo[0], hi[0], lightGround);
@@ -172,8 +171,7 @@ function blockContrast(lab: Float32Array, w: number, h: number, k: number): Uint
       slidingExtent(line, bw, kb, null, lineOut);
       hi[c].set(lineOut, by * bw);
     }
-    verticalExtent(lo[c], bw, bh, kb, false);
-    verticalExtent(hi[c], bw, bh, kb, true);
+    verticalExtent(lo[c], hi[c], bw, bh, kb);
   }
   const blockOut = extentOf(lo, hi, nb);
   const out = new Uint8Array(w * h);
@@ -235,40 +233,61 @@ let extentScratch = new Float32Array(0);
 let verticalScratch = new Float32Array(0);
 
 /**
- * In place: the minimum (or, on the negated plane, the maximum) of each pixel over rows [y − k, y + k],
+ * In place: the minimum of each pixel of `lo` and the maximum of each pixel of `hi` over rows [y − k, y + k],
  * clipped; van Herk / Gil–Werman by whole rows, so memory is read in order.
  */
-function verticalExtent(plane: Float32Array, w: number, h: number, k: number, max: boolean): void {
-  if (max) for (let i = 0; i < plane.length; i++) plane[i] = -plane[i];
-  verticalMinimum(plane, w, h, k);
-  if (max) for (let i = 0; i < plane.length; i++) plane[i] = -plane[i];
-}
-
-function verticalMinimum(plane: Float32Array, w: number, h: number, k: number): void {
-  const size = 2 * k + 1, n = w * h;
-  if (verticalScratch.length < 3 * n) verticalScratch = new Float32Array(3 * n);
-  const src = verticalScratch.subarray(0, n), g = verticalScratch.subarray(n, 2 * n), back = verticalScratch.subarray(2 * n, 3 * n);
-  src.set(plane);
+function verticalExtent(lo: Float32Array, hi: Float32Array, w: number, h: number, k: number): void {
+  const n = w * h;
+  if (verticalScratch.length < 4 * n) verticalScratch = new Float32Array(4 * n);
+  const gLo = verticalScratch.subarray(0, n), backLo = verticalScratch.subarray(n, 2 * n);
+  const gHi = verticalScratch.subarray(2 * n, 3 * n), backHi = verticalScratch.subarray(3 * n, 4 * n);
+  const size = 2 * k + 1;
+  // Running extremes forward from each block's first row (g) and backward from its last (back).
   for (let y = 0; y < h; y++) {
     const o = y * w;
-    if (y % size === 0) g.set(src.subarray(o, o + w), o);
-    else for (let x = o; x < o + w; x++) { const v = src[x], p = g[x - w]; g[x] = v < p ? v : p; }
+    if (y % size === 0) {
+      gLo.set(lo.subarray(o, o + w), o);
+      gHi.set(hi.subarray(o, o + w), o);
+      continue;
+    }
+    for (let x = o; x < o + w; x++) {
+      const l = lo[x], pl = gLo[x - w], u = hi[x], pu = gHi[x - w];
+      gLo[x] = l < pl ? l : pl;
+      gHi[x] = u > pu ? u : pu;
+    }
   }
   for (let y = h - 1; y >= 0; y--) {
     const o = y * w;
-    if (y === h - 1 || (y + 1) % size === 0) back.set(src.subarray(o, o + w), o);
-    else for (let x = o; x < o + w; x++) { const v = src[x], p = back[x + w]; back[x] = v < p ? v : p; }
-  }
-  for (let y = 0; y < h; y++) {
-    const a = y - k, b = y + k, o = y * w;
-    if (a >= 0 && b < h) {
-      for (let x = 0; x < w; x++) { const u = back[a * w + x], v = g[b * w + x]; plane[o + x] = u < v ? u : v; }
+    if (y === h - 1 || (y + 1) % size === 0) {
+      backLo.set(lo.subarray(o, o + w), o);
+      backHi.set(hi.subarray(o, o + w), o);
       continue;
     }
-    // Clipped at the top or bottom: directly over the rows that exist.
-    const from = Math.max(0, a), to = Math.min(h - 1, b);
-    plane.set(src.subarray(from * w, from * w + w), o);
-    for (let yy = from + 1; yy <= to; yy++) for (let x = 0; x < w; x++) { const v = src[yy * w + x]; if (v < plane[o + x]) plane[o + x] = v; }
+    for (let x = o; x < o + w; x++) {
+      const l = lo[x], pl = backLo[x + w], u = hi[x], pu = backHi[x + w];
+      backLo[x] = l < pl ? l : pl;
+      backHi[x] = u > pu ? u : pu;
+    }
+  }
+  // Window [a, b] clipped to the rows that exist: it spans at most two blocks, so it is back from a to its
+  // block's end and g from the next block's start to b, or one of them alone where the window keeps to a block
+  // (the first block starts at row 0, and back restarts at the last row).
+  for (let y = 0; y < h; y++) {
+    const a = Math.max(0, y - k), b = Math.min(h - 1, y + k), o = y * w;
+    const fromBack = a * w, fromG = b * w;
+    if (a === 0 && b < size) {
+      lo.set(gLo.subarray(fromG, fromG + w), o);
+      hi.set(gHi.subarray(fromG, fromG + w), o);
+    } else if (Math.floor(a / size) === Math.floor(b / size)) {
+      lo.set(backLo.subarray(fromBack, fromBack + w), o);
+      hi.set(backHi.subarray(fromBack, fromBack + w), o);
+    } else {
+      for (let x = 0; x < w; x++) {
+        const l1 = backLo[fromBack + x], l2 = gLo[fromG + x], u1 = backHi[fromBack + x], u2 = gHi[fromG + x];
+        lo[o + x] = l1 < l2 ? l1 : l2;
+        hi[o + x] = u1 > u2 ? u1 : u2;
+      }
+    }
   }
 }
 
