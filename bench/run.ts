@@ -130,7 +130,7 @@ async function peers(tmp: string): Promise<void> {
     `| engine, alignment known (normalise + compare + findings) | ${f1(knownMs)} | ${f1(mp / (knownMs / 1000))} | ${f2(knownMs / pm.ms)} |`,
     `| engine, full (align + normalise + compare + findings) | ${f1(fullMs)} | ${f1(mp / (fullMs / 1000))} | ${f2(fullMs / pm.ms)} |`,
     ...Object.entries(stages).map(([k, v]) => `| · stage ${k} (inside the full run) | ${f1(median(v))} | | ${f2(median(v) / pm.ms)} |`),
-    `| prepare the artwork's side (once per artwork and thread: scanner blur 0.4 px, low-pass, CIELAB, local contrast) | ${f1(prepareMs)} | ${f1(mp / (prepareMs / 1000))} | ${f2(prepareMs / pm.ms)} |`,
+    `| prepare the artwork's side (once per artwork and thread: scanner blur 0.4 px, low-pass, local contrast) | ${f1(prepareMs)} | ${f1(mp / (prepareMs / 1000))} | ${f2(prepareMs / pm.ms)} |`,
     `| rasterise the artwork page (pdf.js) | ${f1(rasteriseMs)} | ${f1(mp / (rasteriseMs / 1000))} | ${f2(rasteriseMs / pm.ms)} |`,
     `| load the scan (JPEG q92, sharp decode) | ${f1(median(loads))} | ${f1(mp / (median(loads) / 1000))} | ${f2(median(loads) / pm.ms)} |`,
     "",
@@ -144,6 +144,7 @@ async function peers(tmp: string): Promise<void> {
 
 /** Distinct sheets of one press run each thread inspects in turn (one with defects), so nothing per sheet is reused by chance. */
 const RUN_SHEETS = 3;
+const THROUGHPUT_ROUNDS = 3;
 
 /** B2 sheets at 100 dpi on the scanner glass through the full engine, one worker thread per core. */
 async function throughput(): Promise<void> {
@@ -160,21 +161,26 @@ async function throughput(): Promise<void> {
       ),
     );
     const perWorker = quick ? 3 : 9;
-    const t = performance.now();
-    const replies = await Promise.all(Array.from({ length: cores }, (_, w) => pool.run(w, { type: "repeat", count: perWorker })));
-    const wall = (performance.now() - t) / 1000;
-    const times = replies.flatMap((r) => r.times as number[]);
-    const sheetsPerS = times.length / wall;
+    // Several rounds, since the machine is shared: the verdict takes the median round.
+    const rounds: { sheets: number; wall: number; sheetsPerS: number; medianMs: number }[] = [];
+    for (let round = 0; round < (quick ? 1 : THROUGHPUT_ROUNDS); round++) {
+      const t = performance.now();
+      const replies = await Promise.all(Array.from({ length: cores }, (_, w) => pool.run(w, { type: "repeat", count: perWorker })));
+      const wall = (performance.now() - t) / 1000;
+      const times = replies.flatMap((r) => r.times as number[]);
+      rounds.push({ sheets: times.length, wall, sheetsPerS: times.length / wall, medianMs: median(times) });
+    }
+    const sheetsPerS = median(rounds.map((r) => r.sheetsPerS));
     out.push(
       `## Throughput: B2 at 100 dpi, scan on the glass (turned ≤ 0.6°, shifted, scaled ±0.1 %), full engine, ${cores} worker threads`,
       "",
       `Each thread inspects ${RUN_SHEETS} distinct sheets of one press run in turn (one of them with defects), after one warm-up pass over them.`,
       "",
-      "| sheets | wall s | sheets/s | MP/s (artwork px) | ms a sheet, median in a thread |",
-      "|---:|---:|---:|---:|---:|",
-      `| ${times.length} | ${f1(wall)} | ${f2(sheetsPerS)} | ${f1(sheetsPerS * 5.48)} | ${f1(median(times))} |`,
+      "| round | sheets | wall s | sheets/s | MP/s (artwork px) | ms a sheet, median in a thread |",
+      "|---:|---:|---:|---:|---:|---:|",
+      ...rounds.map((r, i) => `| ${i + 1} | ${r.sheets} | ${f1(r.wall)} | ${f2(r.sheetsPerS)} | ${f1(r.sheetsPerS * 5.48)} | ${f1(r.medianMs)} |`),
       "",
-      `Target: 5 sheets/s using both cores. Measured ${f2(sheetsPerS)}: ${sheetsPerS >= 5 ? "met" : "**not met**"} ` +
+      `Target: 5 sheets/s using both cores. Measured ${f2(sheetsPerS)} (median round): ${sheetsPerS >= 5 ? "met" : "**not met**"} ` +
         `(the scans are decoded and the artwork rasterised beforehand; those add the load and rasterise times above).`,
       "",
     );
