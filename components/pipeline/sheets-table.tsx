@@ -71,7 +71,7 @@ export function SheetsTable({ view, refresh }: { view: JobPipelineView; refresh:
                       <td className="px-2 py-2 font-medium tabular-nums">{s.sheetNumber ?? "—"}</td>
                       <td className="max-w-56 truncate px-2 py-2 text-ink-muted" title={s.fileName}>
                         {s.fileName}
-                        <div className="text-xs">Revision {s.artworkRevision}{i ? ` · ${i.profileLabel}` : ""}</div>
+                        <div className="truncate text-xs" title={i?.profileLabel}>Revision {s.artworkRevision}{i ? ` · ${i.profileLabel}` : ""}</div>
                       </td>
                       <td className="px-2 py-2">
                         <Status sheet={s} />
