@@ -144,7 +144,7 @@ async function peers(tmp: string): Promise<void> {
 
 /** Distinct sheets of one press run each thread inspects in turn (one with defects), so nothing per sheet is reused by chance. */
 const RUN_SHEETS = 3;
-const THROUGHPUT_ROUNDS = 3;
+const THROUGHPUT_ROUNDS = 5;
 
 /** B2 sheets at 100 dpi on the scanner glass through the full engine, one worker thread per core. */
 async function throughput(): Promise<void> {
