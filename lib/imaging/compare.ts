@@ -171,8 +171,8 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
   }
   const r = settings.radiusPx;
   // CIELAB only where it is looked at (screened pixels and, where they need the search, their neighbours within
-  // the registration radius), for both images through one colour cache: reading a prepared CIELAB of the whole
-  // page (12 bytes a pixel) at the screened pixels cost more in memory traffic than the cache lookups.
+  // the registration radius), for both images through one colour cache: as fast here as page-sized CIELAB
+  // buffers of the two images, which would hold 12 bytes a pixel each.
   const keys = scratch.labKeys, values = scratch.labValues, scan = band.scan, artLow = art.low;
   const contrastOf = art.contrast, lightGround = art.lightGround, wideContrast = art.wideContrast;
   const everyPixel = settings.everyPixel === true;
