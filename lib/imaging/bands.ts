@@ -16,7 +16,7 @@ export type AlignedScanSource = (rect: PxRect) => { rgb: Uint8Array; mask: Uint8
  * The scan through its alignment, resampled one rectangle at a time: no full-size warped copy is held. Each
  * rectangle overwrites the previous one's buffers, so a caller uses a result before asking for the next.
  */
-export function alignedScanSource(scan: RgbaImage, alignment: Alignment, artwork: RgbaImage, buffers = new WarpBuffers()): AlignedScanSource {
+export function alignedScanSource(scan: RgbaImage, alignment: Alignment, artwork: RgbaImage, buffers: WarpBuffers): AlignedScanSource {
   return (rect) => {
     const { image, mask } = warpScanToArtwork(scan, alignment, artwork, rect, buffers, 3);
     return { rgb: image.data as Uint8Array, mask };
