@@ -118,25 +118,49 @@ export class CompareScratch {
     return this.normalised.subarray(0, n);
   }
 
+  /**
+   * pixelmatch's output with every alpha byte 0. The comparison clears each alpha it reads, so the buffer comes
+   * back clean without a page-sized fill (set screenClean once it has); pixelmatch reads nothing of it.
+   */
   screenBuffer(n: number): Uint8Array {
     if (this.screen.length < n) this.screen = new Uint8Array(n);
-    const out = this.screen.subarray(0, n);
-    out.fill(0);
-    return out;
+    else if (!this.screenClean) this.screen.fill(0);
+    this.screenClean = false;
+    return this.screen.subarray(0, n);
   }
+  screenClean = true;
 
-  /** Zeroed per-pixel result arrays, valid until the next band: the caller consumes them before asking again. */
+  /**
+   * Zeroed per-pixel result arrays, valid until the next band: the caller consumes them before asking again.
+   * Only the pixels the last band wrote (see wrote) are zeroed again: a handful, not four page-sized fills.
+   */
   result(n: number): { deltaE: Float32Array; score: Float32Array; kind: Uint8Array; structural: Uint8Array } {
-    if (this.results.deltaE.length < n) {
-      this.results = { deltaE: new Float32Array(n), score: new Float32Array(n), kind: new Uint8Array(n), structural: new Uint8Array(n) };
+    let r = this.results;
+    if (r.deltaE.length < n) {
+      r = this.results = { deltaE: new Float32Array(n), score: new Float32Array(n), kind: new Uint8Array(n), structural: new Uint8Array(n) };
+    } else if (this.writtenCount > this.written.length) {
+      r.deltaE.fill(0);
+      r.score.fill(0);
+      r.kind.fill(0);
+      r.structural.fill(0);
+    } else {
+      for (let j = 0; j < this.writtenCount; j++) {
+        const i = this.written[j];
+        r.deltaE[i] = 0;
+        r.score[i] = 0;
+        r.kind[i] = 0;
+        r.structural[i] = 0;
+      }
     }
-    const r = this.results;
-    const out = { deltaE: r.deltaE.subarray(0, n), score: r.score.subarray(0, n), kind: r.kind.subarray(0, n), structural: r.structural.subarray(0, n) };
-    out.deltaE.fill(0);
-    out.score.fill(0);
-    out.kind.fill(0);
-    out.structural.fill(0);
-    return out;
+    this.writtenCount = 0;
+    return { deltaE: r.deltaE.subarray(0, n), score: r.score.subarray(0, n), kind: r.kind.subarray(0, n), structural: r.structural.subarray(0, n) };
+  }
+  private written = new Int32Array(1 << 16);
+  private writtenCount = 0;
+  /** Records pixel i as written in the result arrays; past the list's length, the next band zeroes them whole. */
+  wrote(i: number): void {
+    if (this.writtenCount < this.written.length) this.written[this.writtenCount] = i;
+    this.writtenCount++;
   }
 }
 
@@ -167,7 +191,10 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       coreRows,
       { threshold, includeAA: true, diffMask: true },
     );
-    if (count === 0) return { deltaE, score, kind, structural, flagged: 0, candidates: 0 };
+    if (count === 0) {
+      scratch.screenClean = true;
+      return { deltaE, score, kind, structural, flagged: 0, candidates: 0 };
+    }
   }
   const r = settings.radiusPx;
   // CIELAB only where it is looked at (screened pixels and, where they need the search, their neighbours within
@@ -186,7 +213,11 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
     const y0 = Math.max(0, y - r), y1 = Math.min(rows - 1, y + r);
     for (let x = 0; x < width; x++) {
       const i = cy * width + x;
-      if (inspect[i] === 0 || (screen !== null && screen[i * 4 + 3] === 0)) continue;
+      if (screen !== null) {
+        if (screen[i * 4 + 3] === 0) continue;
+        screen[i * 4 + 3] = 0;
+      }
+      if (inspect[i] === 0) continue;
       candidates++;
       const pix = y * width + x;
       let v = labSlot(scan, pix, keys, values);
@@ -233,6 +264,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       const structuralInk = k !== PIXEL_COLOUR_SHIFT && nearType && e - EDGE_ALLOWANCE_STRUCTURAL * contrast >= peak;
       if (structuralInk) structural[i] = k;
       if (s < low && !structuralInk && !everyPixel) continue;
+      scratch.wrote(i);
       deltaE[i] = e;
       score[i] = s > 0 ? s : 0;
       if (s >= low) {
@@ -241,6 +273,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       }
     }
   }
+  scratch.screenClean = true;
   return { deltaE, score, kind, structural, flagged, candidates };
 }
 

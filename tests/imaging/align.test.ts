@@ -4,6 +4,7 @@
 // The artwork is the invented multi-up carton sheet of tests/support/carton.ts, rasterised at 100 dpi.
 import { beforeAll, describe, expect, it } from "vitest";
 import { alignScan, warpScanToArtwork } from "@/lib/imaging/align";
+import { WarpBuffers } from "@/lib/imaging/align-warp";
 import { apply, coveredRect } from "@/lib/imaging/align-affine";
 import { pxRectToMm } from "@/lib/imaging/raster";
 import { loadOpenCv } from "@/lib/imaging/opencv";
@@ -261,6 +262,20 @@ describe("warpScanToArtwork", () => {
         expect(tile.mask[i]).toBe(whole.mask[j]);
         expect(tile.image.data[i * 4]).toBe(whole.image.data[j * 4]);
       }
+    }
+  });
+
+  it("writes every pixel and mask byte of reused buffers, covered or not, in RGB and RGBA", async () => {
+    const o: GlassOptions = { rotationDeg: -2.2, sizeMm: { w: 170, h: 230 }, centreMm: { x: 160, y: 115 } };
+    const { sim, alignment } = await alignCase(carton, o);
+    for (const channels of [3, 4] as const) {
+      const fresh = warpScanToArtwork(sim.scan, alignment, carton, undefined, undefined, channels);
+      const reused = new WarpBuffers();
+      // Leave the buffers full of another warp's pixels and a mask of 1s first.
+      warpScanToArtwork(sim.scan, { artworkToScan: [1, 0, 0, 0, 1, 0] }, carton, undefined, reused, channels).mask.fill(1);
+      const again = warpScanToArtwork(sim.scan, alignment, carton, undefined, reused, channels);
+      expect(Buffer.compare(Buffer.from(again.image.data), Buffer.from(fresh.image.data))).toBe(0);
+      expect(Buffer.compare(Buffer.from(again.mask), Buffer.from(fresh.mask))).toBe(0);
     }
   });
 });

@@ -73,4 +73,23 @@ describe("compareBand", () => {
     expect(d.flagged).toBe(W * (H - 10));
     expect(() => compareBand({ ...p, rows: H + 1 }, settings, new CompareScratch())).toThrow(/do not match/);
   });
+
+  it("gives the same difference with scratch buffers reused after other bands as with fresh ones", async () => {
+    const art = image((x, y) => ((x + y) % 9 < 4 ? [30, 30, 30] : [240, 235, 225]));
+    const scan = (dot: number) => image((x, y) => ((x - dot) ** 2 + (y - 15) ** 2 < 9 ? [20, 20, 120] : (x + y) % 9 < 4 ? [32, 30, 28] : [240, 236, 222]));
+    const scratch = new CompareScratch();
+    // Bands that flag many pixels (every pixel's result written) and few, in turn, through one scratch.
+    compareBand(pair(image(() => [0, 0, 0]), image(() => [255, 255, 255])), settings, scratch);
+    compareBand(pair(art, scan(10)), { ...settings, everyPixel: true }, scratch);
+    for (const dot of [30, 10, 20]) {
+      const a = compareBand(pair(art, scan(dot)), settings, scratch);
+      const b = compareBand(pair(art, scan(dot)), settings, new CompareScratch());
+      expect(a.flagged).toBeGreaterThan(0);
+      expect(a.flagged).toBe(b.flagged);
+      expect([...a.deltaE]).toEqual([...b.deltaE]);
+      expect([...a.kind]).toEqual([...b.kind]);
+      expect([...a.score]).toEqual([...b.score]);
+      expect([...a.structural]).toEqual([...b.structural]);
+    }
+  });
 });
