@@ -51,47 +51,53 @@ export function applyColourModel(model: ColourModel, rgba: Uint8Array): void {
 }
 
 /**
- * The model from `src` (3 or 4 bytes a pixel) into RGBA `out` (alpha set to 255 when `src` has none), through a
- * direct-mapped cache of the table's answers.
+ * The model from `src` (3 or 4 bytes a pixel) into RGBA `out` (alpha set to 255 when `src` has none, kept
+ * otherwise; `out` may be `src` when both have 4), through a direct-mapped cache of the table's answers.
  */
 export function mapColours(model: ColourModel, src: Uint8Array, srcChannels: 3 | 4, out: Uint8Array): void {
+  if (out.byteOffset % 4 !== 0) {
+    // Word stores need a 4-byte-aligned output (a Buffer slice may not be).
+    const aligned = new Uint8Array(out.length);
+    mapColours(model, src, srcChannels, aligned);
+    out.set(aligned);
+    return;
+  }
   const lut = model.lut;
   const s = (LUT_SIZE - 1) / 255;
   const sg = LUT_SIZE * 3, sr = LUT_SIZE * LUT_SIZE * 3;
   const keys = (model.cacheKeys ??= new Int32Array(CACHE_SLOTS).fill(-1));
+  // Answers as little-endian RGBA words with alpha 255: a cache hit is one load and one store.
   const values = (model.cacheValues ??= new Int32Array(CACHE_SLOTS));
+  const out32 = new Int32Array(out.buffer, out.byteOffset, out.length >> 2);
   const n = src.length / srcChannels;
-  for (let j = 0, i = 0, o4 = 0; j < n; j++, i += srcChannels, o4 += 4) {
+  for (let j = 0, i = 0; j < n; j++, i += srcChannels) {
     const key = (src[i] << 16) | (src[i + 1] << 8) | src[i + 2];
     const slot = Math.imul(key, 0x9e3779b1) >>> 16;
-    if (srcChannels === 3) out[o4 + 3] = 255;
-    if (keys[slot] === key) {
-      const v = values[slot];
-      out[o4] = v >>> 16; out[o4 + 1] = (v >>> 8) & 255; out[o4 + 2] = v & 255;
-      continue;
+    let word: number;
+    if (keys[slot] === key) word = values[slot];
+    else {
+      const fr = src[i] * s, fg = src[i + 1] * s, fb = src[i + 2] * s;
+      let ir = fr | 0, ig = fg | 0, ib = fb | 0;
+      if (ir > LUT_SIZE - 2) ir = LUT_SIZE - 2;
+      if (ig > LUT_SIZE - 2) ig = LUT_SIZE - 2;
+      if (ib > LUT_SIZE - 2) ib = LUT_SIZE - 2;
+      const dr = fr - ir, dg = fg - ig, db = fb - ib;
+      const o = ir * sr + ig * sg + ib * 3;
+      word = -0x1000000;
+      for (let c = 0; c < 3; c++) {
+        const p = o + c;
+        const c00 = lut[p] + (lut[p + 3] - lut[p]) * db;
+        const c01 = lut[p + sg] + (lut[p + sg + 3] - lut[p + sg]) * db;
+        const c10 = lut[p + sr] + (lut[p + sr + 3] - lut[p + sr]) * db;
+        const c11 = lut[p + sr + sg] + (lut[p + sr + sg + 3] - lut[p + sr + sg]) * db;
+        const c0 = c00 + (c01 - c00) * dg, c1 = c10 + (c11 - c10) * dg;
+        const v = c0 + (c1 - c0) * dr;
+        word |= (v <= 0 ? 0 : v >= 255 ? 255 : (v + 0.5) | 0) << (8 * c);
+      }
+      keys[slot] = key;
+      values[slot] = word;
     }
-    const fr = src[i] * s, fg = src[i + 1] * s, fb = src[i + 2] * s;
-    let ir = fr | 0, ig = fg | 0, ib = fb | 0;
-    if (ir > LUT_SIZE - 2) ir = LUT_SIZE - 2;
-    if (ig > LUT_SIZE - 2) ig = LUT_SIZE - 2;
-    if (ib > LUT_SIZE - 2) ib = LUT_SIZE - 2;
-    const dr = fr - ir, dg = fg - ig, db = fb - ib;
-    const o = ir * sr + ig * sg + ib * 3;
-    let packed = 0;
-    for (let c = 0; c < 3; c++) {
-      const p = o + c;
-      const c00 = lut[p] + (lut[p + 3] - lut[p]) * db;
-      const c01 = lut[p + sg] + (lut[p + sg + 3] - lut[p + sg]) * db;
-      const c10 = lut[p + sr] + (lut[p + sr + 3] - lut[p + sr]) * db;
-      const c11 = lut[p + sr + sg] + (lut[p + sr + sg + 3] - lut[p + sr + sg]) * db;
-      const c0 = c00 + (c01 - c00) * dg, c1 = c10 + (c11 - c10) * dg;
-      const v = c0 + (c1 - c0) * dr;
-      const q = v <= 0 ? 0 : v >= 255 ? 255 : (v + 0.5) | 0;
-      out[o4 + c] = q;
-      packed = (packed << 8) | q;
-    }
-    keys[slot] = key;
-    values[slot] = packed;
+    out32[j] = srcChannels === 3 ? word : (word & 0xffffff) | (src[i + 3] << 24);
   }
 }
 

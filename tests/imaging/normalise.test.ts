@@ -2,7 +2,7 @@
 // curve: linear 0.5 encodes to 0.7354) and colorjs.io for CIELAB (D65) of the artwork colours.
 import { beforeAll, describe, expect, it } from "vitest";
 import { deltaE00, srgb8ToLab } from "@/lib/imaging/colour";
-import { evaluateModel } from "@/lib/imaging/colour-model";
+import { evaluateModel, identityModel, mapColours } from "@/lib/imaging/colour-model";
 import { fitNormalisation, lowPass, lowPassSigmaPx } from "@/lib/imaging/normalise";
 import { rasterisePage } from "@/lib/imaging/rasterise";
 import type { ArtworkRaster } from "@/lib/imaging/types";
@@ -94,5 +94,25 @@ describe("colour fit", () => {
     const art = [artwork.data[p], artwork.data[p + 1], artwork.data[p + 2]];
     const seen = evaluateModel(fit.model, sim.scan.data[p], sim.scan.data[p + 1], sim.scan.data[p + 2]);
     expect(deltaE00(...ab(art), ...ab(seen))).toBeGreaterThan(3);
+  });
+});
+
+describe("mapColours", () => {
+  // The identity table reproduces every colour exactly (its nodes lie on a straight line per channel), so each
+  // layout of input and output can be checked against the input itself.
+  const colours = [[0, 0, 0], [255, 255, 255], [12, 200, 99], [250, 1, 128], [12, 200, 99]];
+  it("maps RGB into RGBA with alpha 255, and RGBA in place keeping alpha, aligned or not", () => {
+    const rgb = Uint8Array.from(colours.flat());
+    const out = new Uint8Array(colours.length * 4);
+    mapColours(identityModel(), rgb, 3, out);
+    expect([...out]).toEqual(colours.flatMap((c) => [...c, 255]));
+    const rgba = Uint8Array.from(colours.flatMap((c, k) => [...c, 10 * k]));
+    mapColours(identityModel(), rgba, 4, rgba);
+    expect([...rgba]).toEqual(colours.flatMap((c, k) => [...c, 10 * k]));
+    // A view one byte into its buffer cannot take word stores.
+    const offset = new Uint8Array(colours.length * 4 + 1).subarray(1);
+    offset.set(colours.flatMap((c) => [...c, 77]));
+    mapColours(identityModel(), offset, 4, offset);
+    expect([...offset]).toEqual(colours.flatMap((c) => [...c, 77]));
   });
 });
