@@ -3,6 +3,7 @@
 // `make-scan OUT.jpg` first writes the simulated scan (in its own process, so its memory does not count).
 import { readFile, writeFile } from "node:fs/promises";
 import sharp from "sharp";
+import { growHeapBeforeMarking } from "../lib/imaging/heap";
 import { inspectSheet } from "../lib/imaging/inspect";
 import { loadScan } from "../lib/imaging/load-scan";
 import { getProfile } from "../lib/imaging/profiles";
@@ -13,6 +14,8 @@ import { applyDefects } from "../tests/support/simulator/defects";
 const CARTON = { widthMm: 1000, heightMm: 707, rows: 4, columns: 6 };
 const DPI = 300;
 const [mode, file] = process.argv.slice(2);
+// The heap setting of the product's worker process, so that the peak measured is the one it would see.
+growHeapBeforeMarking();
 const { pdf, layout } = await makeCartonPdf(CARTON);
 const started = performance.now();
 

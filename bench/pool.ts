@@ -1,6 +1,10 @@
 // A fixed pool of worker threads (one per core) running bench/worker.ts jobs.
 import { Worker } from "node:worker_threads";
+import { growHeapBeforeMarking } from "../lib/imaging/heap";
 import type { WorkerJob } from "./worker";
+
+// As in the product's worker process.
+growHeapBeforeMarking();
 
 /** A job without its id (Omit distributed over the union). */
 export type Job = WorkerJob extends infer J ? (J extends WorkerJob ? Omit<J, "id"> : never) : never;

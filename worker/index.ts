@@ -5,6 +5,7 @@ import path from "node:path";
 import { Worker, type Job } from "bullmq";
 import { closeDb } from "@/db/client";
 import { env } from "@/lib/env";
+import { growHeapBeforeMarking } from "@/lib/imaging/heap";
 import { closeMailTransport } from "@/lib/mail/transport";
 import { failInspection } from "@/lib/pipeline/records";
 import { workerConnection } from "@/lib/queue/connection";
@@ -14,6 +15,7 @@ import { sendPipelineMail } from "./mail";
 import { sweep } from "./sweep";
 
 const threadEntry = path.join(import.meta.dirname, "thread.mjs");
+growHeapBeforeMarking();
 const log = (line: string) => console.log(`${new Date().toISOString()} ${line}`);
 
 // A killed worker's job is taken over once its lock lapses; a job found stalled twice more is failed.
