@@ -308,21 +308,35 @@ function fitToneCurve(groups: ColourGroup[], pairs: SamplePairs, c: number): Flo
     points.push({ x: g.scan[c], y: g.art[c], w: 4 * g.count });
   }
   // Bins of TONE_BIN scan codes: single codes hold too few edge samples and make the curve steep by chance.
-  const bins: { scan: number[]; art: number[] }[] = Array.from({ length: Math.ceil(256 / TONE_BIN) }, () => ({ scan: [], art: [] }));
-  const a = pairs.allArt;
-  for (let i = 0; i < pairs.allCount; i++) {
+  // Each bin's pairs are gathered into one typed array per side (a counting sort), then take their medians.
+  const bins = Math.ceil(256 / TONE_BIN);
+  const a = pairs.allArt, s = pairs.allScan, n = pairs.allCount;
+  const binOf = new Int32Array(n);
+  const starts = new Int32Array(bins + 1);
+  for (let i = 0; i < n; i++) {
     const r = a[i * 3], g = a[i * 3 + 1], b = a[i * 3 + 2];
-    if (Math.max(r, g, b) - Math.min(r, g, b) > NEUTRAL_SPREAD) continue;
-    const sv = pairs.allScan[i * 3 + c];
+    const sv = s[i * 3 + c];
     // A pair far apart is a mark on the sheet (or a stray edge), not tone: keep it out of the curve.
-    if (Math.abs(sv - a[i * 3 + c]) > MAX_TONE_GAP) continue;
-    const bin = bins[Math.min(bins.length - 1, Math.max(0, Math.floor(sv / TONE_BIN)))];
-    bin.scan.push(sv);
-    bin.art.push(a[i * 3 + c]);
+    if (Math.max(r, g, b) - Math.min(r, g, b) > NEUTRAL_SPREAD || Math.abs(sv - a[i * 3 + c]) > MAX_TONE_GAP) {
+      binOf[i] = -1;
+      continue;
+    }
+    binOf[i] = Math.min(bins - 1, Math.max(0, Math.floor(sv / TONE_BIN)));
+    starts[binOf[i] + 1]++;
   }
-  for (const bin of bins) {
-    if (bin.art.length < MIN_TONE_BIN) continue;
-    points.push({ x: median(Float32Array.from(bin.scan)), y: median(Float32Array.from(bin.art)), w: bin.art.length });
+  for (let k = 0; k < bins; k++) starts[k + 1] += starts[k];
+  const binScan = new Float32Array(starts[bins]), binArt = new Float32Array(starts[bins]);
+  const fill = starts.slice(0, bins);
+  for (let i = 0; i < n; i++) {
+    if (binOf[i] < 0) continue;
+    const at = fill[binOf[i]]++;
+    binScan[at] = s[i * 3 + c];
+    binArt[at] = a[i * 3 + c];
+  }
+  for (let k = 0; k < bins; k++) {
+    const from = starts[k], count = starts[k + 1] - from;
+    if (count < MIN_TONE_BIN) continue;
+    points.push({ x: median(binScan.subarray(from, from + count)), y: median(binArt.subarray(from, from + count)), w: count });
   }
   const total = points.reduce((t, p) => t + p.w, 0);
   const flatLo = Math.min(256, ...points.map((p) => p.x)), flatHi = Math.max(-1, ...points.map((p) => p.x));
