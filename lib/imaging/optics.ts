@@ -30,30 +30,28 @@ export async function estimateOpticalBlur(
 ): Promise<number> {
   const margin = Math.ceil(3 * (sigmaPx + OPTICAL_BLUR_STEPS_PX.at(-1)!));
   const side = WINDOW + 2 * margin;
-  const sites = edgeSites(artwork, inspectPx, margin);
+  const trials = artworkTrials(artwork, inspectPx, margin, sigmaPx);
+  const { sites } = trials;
   if (sites.length < 4) return 0;
   // All windows side by side in one mosaic, so each trial blurs one image; blur crossing from one window into
   // the next reaches only the margins, and only window cores are scored.
   const mosaicW = side * sites.length, n = mosaicW * side;
-  const art = new Uint8Array(n * 4), scanned = new Uint8Array(n * 4);
+  const scanned = new Uint8Array(n * 4);
   const usable: boolean[] = [];
   sites.forEach((s, k) => {
     const rect = { x: s.x - margin, y: s.y - margin, w: side, h: side };
     const { image, mask } = warpScanToArtwork(scan, alignment, artwork, rect);
     usable.push(mask.every((m) => m === 1));
-    for (let row = 0; row < side; row++) {
-      const from = ((rect.y + row) * artwork.width + rect.x) * 4;
-      art.set(artwork.data.subarray(from, from + side * 4), (row * mosaicW + k * side) * 4);
-      scanned.set(image.data.subarray(row * side * 4, (row + 1) * side * 4), (row * mosaicW + k * side) * 4);
-    }
+    for (let row = 0; row < side; row++) scanned.set(image.data.subarray(row * side * 4, (row + 1) * side * 4), (row * mosaicW + k * side) * 4);
   });
   const scanLow = toRgba([0, 1, 2].map((c) => blurPlane(plane(scanned, n, c, (v) => v), mosaicW, side, sigmaPx, TRUNCATE_LOW_PASS)), n);
   applyColourModel(model, scanLow);
-  // The artwork's trials in green alone: blur shows in every channel alike, and green carries most of the lightness.
-  const artLinear = plane(art, n, 1, (v) => SRGB8_TO_LINEAR[v]);
   const score = (step: number) => {
-    const seen = opticalBlurPlane(artLinear, mosaicW, side, step);
-    const artLow = blurPlane(seen.map(linearToSrgb255Fast), mosaicW, side, sigmaPx, TRUNCATE_LOW_PASS);
+    let artLow = trials.low.get(step);
+    if (!artLow) {
+      const seen = opticalBlurPlane(trials.linear, mosaicW, side, step);
+      trials.low.set(step, (artLow = blurPlane(seen.map(linearToSrgb255Fast), mosaicW, side, sigmaPx, TRUNCATE_LOW_PASS)));
+    }
     let error = 0;
     for (let k = 0; k < sites.length; k++) {
       if (!usable[k]) continue;
@@ -88,6 +86,40 @@ const KEEP_LAST_WITHIN = 0.95;
 
 /** Per thread: the step found on the last sheet of each artwork. */
 const lastStep = new WeakMap<ArrayBufferLike, number>();
+
+interface ArtworkTrials {
+  key: string;
+  sites: { x: number; y: number }[];
+  /** The artwork's windows in one mosaic, green channel in linear light. */
+  linear: Float32Array;
+  /** The mosaic as the scanner would see it at each width tried, low-passed (8-bit sRGB scale). */
+  low: Map<number, Float32Array>;
+}
+
+/**
+ * Per thread and artwork: the windows chosen over an inspected area and the artwork's side of each trial. They
+ * depend on the artwork alone, so the sheets of a press run (one artwork, the same area) share them.
+ */
+const trialsByArtwork = new WeakMap<ArrayBufferLike, ArtworkTrials>();
+
+function artworkTrials(artwork: RgbaImage, inspectPx: PxRect, margin: number, sigmaPx: number): ArtworkTrials {
+  const key = [inspectPx.x, inspectPx.y, inspectPx.w, inspectPx.h, margin, sigmaPx].join();
+  const cached = trialsByArtwork.get(artwork.data.buffer);
+  if (cached?.key === key) return cached;
+  const sites = edgeSites(artwork, inspectPx, margin);
+  const side = WINDOW + 2 * margin, mosaicW = side * sites.length;
+  // The trials run in green alone: blur shows in every channel alike, and green carries most of the lightness.
+  const linear = new Float32Array(mosaicW * side);
+  sites.forEach((s, k) => {
+    for (let row = 0; row < side; row++) {
+      const from = ((s.y - margin + row) * artwork.width + s.x - margin) * 4;
+      for (let col = 0; col < side; col++) linear[row * mosaicW + k * side + col] = SRGB8_TO_LINEAR[artwork.data[from + col * 4 + 1]];
+    }
+  });
+  const trials = { key, sites, linear, low: new Map<number, Float32Array>() };
+  trialsByArtwork.set(artwork.data.buffer, trials);
+  return trials;
+}
 
 /** The low-pass kernel ends where it falls under this share of its peak, as sharp's default does. */
 const TRUNCATE_LOW_PASS = 0.2;
