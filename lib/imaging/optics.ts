@@ -103,7 +103,7 @@ interface ArtworkTrials {
 const trialsByArtwork = new WeakMap<ArrayBufferLike, ArtworkTrials>();
 
 function artworkTrials(artwork: RgbaImage, inspectPx: PxRect, margin: number, sigmaPx: number): ArtworkTrials {
-  const key = [inspectPx.x, inspectPx.y, inspectPx.w, inspectPx.h, margin, sigmaPx].join();
+  const key = [artwork.data.byteOffset, artwork.width, artwork.height, inspectPx.x, inspectPx.y, inspectPx.w, inspectPx.h, margin, sigmaPx].join();
   const cached = trialsByArtwork.get(artwork.data.buffer);
   if (cached?.key === key) return cached;
   const sites = edgeSites(artwork, inspectPx, margin);
