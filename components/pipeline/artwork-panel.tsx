@@ -69,9 +69,15 @@ export function ArtworkPanel({ view, refresh }: { view: JobPipelineView; refresh
           {view.revisions.map((r) => (
             <li key={r.id} className="flex flex-wrap items-center gap-x-4 gap-y-1 py-2">
               <span className="font-medium">Revision {r.revision}</span>
-              <span className="min-w-0 flex-1 truncate text-ink-muted" title={r.fileName}>
-                {r.fileName} · {formatBytes(r.bytes)}
-                {r.pageWidthMm && r.pageHeightMm ? ` · ${r.pageWidthMm} × ${r.pageHeightMm} mm` : ""}
+              {/* Only the file name gives way on a narrow screen: the page size is what prepress checks. */}
+              <span className="flex min-w-0 flex-1 text-ink-muted">
+                <span className="truncate" title={r.fileName}>
+                  {r.fileName}
+                </span>
+                <span className="shrink-0 whitespace-pre">
+                  {` · ${formatBytes(r.bytes)}`}
+                  {r.pageWidthMm && r.pageHeightMm ? ` · ${r.pageWidthMm} × ${r.pageHeightMm} mm` : ""}
+                </span>
               </span>
               <span className={r.status === "approved" ? "font-medium text-ok" : "text-ink-muted"}>{statusLabel[r.status]}</span>
               {r.status === "approved" && <span className={r.rasterStatus === "failed" ? "text-danger" : "text-ink-muted"}>{rasterLabel[r.rasterStatus]}</span>}
