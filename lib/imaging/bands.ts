@@ -59,6 +59,8 @@ export interface SheetContext {
   excludedPx: PxRect[];
   scratch: CompareScratch;
   timings: { normalise: number; compare: number };
+  /** Time by per-pixel pass (ms), added to band by band. */
+  passes: Record<"warp" | "lowPass" | "colourMap" | "screen" | "cielab", number>;
 }
 
 export interface RectDifference extends BandDifference {
@@ -79,12 +81,17 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
     { x: 0, y: 0, w: art.width, h: art.height },
   );
   const scanPatch = ctx.source(ext);
+  const warped = performance.now();
+  ctx.passes.warp += warped - started;
   const [artPrepared, scanLow] = await Promise.all([
     preparedRect(art, ext, ctx.windows),
     lowPassRgb(scanPatch.rgb, ext.w, ext.h, ctx.sigmaPx),
   ]);
+  const lowPassed = performance.now();
+  ctx.passes.lowPass += lowPassed - warped;
   const scanNormal = ctx.scratch.normalisedScan(ext.w * ext.h * 4);
   mapColours(ctx.model, scanLow, 3, scanNormal);
+  ctx.passes.colourMap += performance.now() - lowPassed;
   const inspect = inspectMask(ctx, core, ext, scanPatch.mask, Math.ceil(2 * ctx.sigmaPx) + 1);
   const mid = performance.now();
   ctx.timings.normalise += mid - started;
@@ -101,7 +108,10 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
     { lowDeltaE00: ctx.lowDeltaE00, peakDeltaE00: ctx.peakDeltaE00, radiusPx: ctx.radiusPx, everyPixel },
     ctx.scratch,
   );
-  ctx.timings.compare += performance.now() - mid;
+  const compared = performance.now() - mid;
+  ctx.timings.compare += compared;
+  ctx.passes.screen += diff.screenMs;
+  ctx.passes.cielab += compared - diff.screenMs;
   if (ext.w === core.w) return { ...diff, rect: core };
   const deltaE = new Float32Array(core.w * core.h);
   const kind = new Uint8Array(core.w * core.h);

@@ -92,6 +92,8 @@ export interface BandDifference {
   structural: Uint8Array;
   flagged: number;
   candidates: number;
+  /** Time spent in pixelmatch's screen (ms). */
+  screenMs: number;
 }
 
 /** Reusable buffers of the comparison, used by one inspection at a time (bands.ts lends them; never shared between threads). */
@@ -177,12 +179,14 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
   const low = settings.lowDeltaE00;
   const coreStart = coreY * width * 4;
   let screen: Uint8Array | null = null;
+  let screenMs = 0;
   if (!settings.everyPixel) {
     screen = scratch.screenBuffer(n * 4);
     // Set on the second level: a region is kept only for pixels that reach it, and set on the first the
     // screen would pass nearly every pixel of a noisy scan.
     const peak = settings.peakDeltaE00;
     const threshold = Math.sqrt((YIQ_PER_DE00_SQUARED * peak * peak) / YIQ_MAX);
+    const screenStarted = performance.now();
     const count = pixelmatch(
       art.low.subarray(coreStart, coreStart + n * 4),
       band.scan.subarray(coreStart, coreStart + n * 4),
@@ -191,9 +195,10 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       coreRows,
       { threshold, includeAA: true, diffMask: true },
     );
+    screenMs = performance.now() - screenStarted;
     if (count === 0) {
       scratch.screenClean = true;
-      return { deltaE, score, kind, structural, flagged: 0, candidates: 0 };
+      return { deltaE, score, kind, structural, flagged: 0, candidates: 0, screenMs };
     }
   }
   const r = settings.radiusPx;
@@ -274,7 +279,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
     }
   }
   scratch.screenClean = true;
-  return { deltaE, score, kind, structural, flagged, candidates };
+  return { deltaE, score, kind, structural, flagged, candidates, screenMs };
 }
 
 /**

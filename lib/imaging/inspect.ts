@@ -73,8 +73,10 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
   const inspectPx = rectMmToPxInside(alignment.coveredMm, dpi, artwork.width, artwork.height);
   started = performance.now();
   const fit = fitNormalisation(artwork, scan, alignment.artworkToScan, inspectPx, Math.ceil(2.5 * sigmaPx) + radiusPx);
+  const fitted = performance.now();
   const opticalBlurPx = await estimateOpticalBlur(artwork, scan, alignment, fit.model, sigmaPx, inspectPx);
   timings.normalise += performance.now() - started;
+  const passes: Record<string, number> = { colourFit: fitted - started, scannerBlur: performance.now() - fitted };
 
   const scratch = borrowScratch();
   let findings: Finding[];
@@ -92,19 +94,22 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
       excludedPx: profile.excludedAreasMm.map((r) => rectMmToPx(r, dpi, artwork.width, artwork.height)),
       scratch: scratch.compare,
       timings: { normalise: 0, compare: 0 },
+      passes: { warp: 0, lowPass: 0, colourMap: 0, screen: 0, cielab: 0 },
     };
     findings = await compareSheet(ctx, artwork, profile, { ups, crops: input.crops ?? false }, timings, progress);
+    Object.assign(passes, ctx.passes);
   } finally {
     returnScratch(scratch);
   }
   progress("findings", 100);
-  for (const k of Object.keys(timings)) timings[k] = Math.round(timings[k] * 10) / 10;
+  for (const t of [timings, passes]) for (const k of Object.keys(t)) t[k] = Math.round(t[k] * 10) / 10;
   return {
     alignment,
     coveredMm: alignment.coveredMm,
     drift: { deltaE00: Math.round(fit.driftDeltaE00 * 100) / 100 },
     findings,
     timingsMs: timings,
+    passesMs: passes,
   };
 }
 

@@ -124,6 +124,11 @@ export interface InspectionResult {
   drift: { deltaE00: number };
   findings: Finding[];
   timingsMs: Record<string, number>;
+  /**
+   * The same time by pass, inside the stages (ms): the per-sheet fits (colour fit, scanner blur) and each
+   * per-pixel pass of the bands (warp, low-pass, colour map, pixelmatch screen, CIELAB comparison).
+   */
+  passesMs: Record<string, number>;
 }
 
 /** A refusal or bad input the caller can act on; `code` is stable, `message` is plain words. */

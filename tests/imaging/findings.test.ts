@@ -9,7 +9,7 @@ function band(width: number, rows: string[], kind = PIXEL_EXTRA_INK, e = 10): Ba
   rows.forEach((row, y) => [...row].forEach((c, x) => {
     if (c === "#") { deltaE[y * width + x] = e; k[y * width + x] = kind; }
   }));
-  return { deltaE, score: deltaE, kind: k, structural: new Uint8Array(width * rows.length), flagged: 0, candidates: 0 };
+  return { deltaE, score: deltaE, kind: k, structural: new Uint8Array(width * rows.length), flagged: 0, candidates: 0, screenMs: 0 };
 }
 
 const rules = { dpi: 254, minStrongPx: 1, minAreaMm2: 0, mergeMm: 0, pageMm: { widthMm: 10, heightMm: 10 } };

@@ -61,6 +61,11 @@ describe("inspectSheet on simulated sheets", () => {
     const stray = result.findings.filter((f) => !sim.truth.some((t) => overlaps(f, t.boxMm)));
     expect(stray).toEqual([]);
     expect(result.timingsMs).toMatchObject({ align: expect.any(Number), normalise: expect.any(Number), compare: expect.any(Number), findings: expect.any(Number) });
+    // The passes lie inside the normalise and compare stages.
+    const p = result.passesMs;
+    expect(Object.keys(p)).toEqual(["colourFit", "scannerBlur", "warp", "lowPass", "colourMap", "screen", "cielab"]);
+    expect(p.colourFit + p.scannerBlur + p.warp + p.lowPass + p.colourMap).toBeLessThanOrEqual(result.timingsMs.normalise + 0.5);
+    expect(p.screen + p.cielab).toBeLessThanOrEqual(result.timingsMs.compare + 0.5);
   });
 
   it("finds a changed word in 6 pt text", async () => {

@@ -100,6 +100,7 @@ describe("pipeline faults", () => {
       drift: { deltaE00: 0 },
       findings: [{ xMm: 1, yMm: 1, wMm: 1, hMm: 1, areaMm2: 1, kind: "extra_ink", deltaE00Mean: 9, deltaE00Max: 12, up: 1 }],
       timingsMs: {},
+      passesMs: {},
     };
     await saveInspectionResult(id, fake, [null]);
     await saveInspectionResult(id, fake, [null]);
