@@ -4,6 +4,7 @@
 // found by trying a few Gaussian widths (in linear light, as optics blend) on windows of the artwork that hold
 // edges, and keeping the one whose low-passed result lies nearest the normalised scan.
 import { warpScanToArtwork } from "./align-warp";
+import { ArtworkCache } from "./artwork-cache";
 import { linearToSrgb255Fast, SRGB8_TO_LINEAR } from "./colour";
 import { applyColourModel, type ColourModel } from "./colour-model";
 import { intersect, type PxRect } from "./raster";
@@ -88,7 +89,6 @@ const KEEP_LAST_WITHIN = 0.95;
 const lastStep = new WeakMap<ArrayBufferLike, number>();
 
 interface ArtworkTrials {
-  key: string;
   sites: { x: number; y: number }[];
   /** The artwork's windows in one mosaic, green channel in linear light. */
   linear: Float32Array;
@@ -100,12 +100,14 @@ interface ArtworkTrials {
  * Per thread and artwork: the windows chosen over an inspected area and the artwork's side of each trial. They
  * depend on the artwork alone, so the sheets of a press run (one artwork, the same area) share them.
  */
-const trialsByArtwork = new WeakMap<ArrayBufferLike, ArtworkTrials>();
+const trialsByArtwork = new ArtworkCache<ArtworkTrials>(1);
 
 function artworkTrials(artwork: RgbaImage, inspectPx: PxRect, margin: number, sigmaPx: number): ArtworkTrials {
-  const key = [artwork.data.byteOffset, artwork.width, artwork.height, inspectPx.x, inspectPx.y, inspectPx.w, inspectPx.h, margin, sigmaPx].join();
-  const cached = trialsByArtwork.get(artwork.data.buffer);
-  if (cached?.key === key) return cached;
+  const key = [inspectPx.x, inspectPx.y, inspectPx.w, inspectPx.h, margin, sigmaPx].join();
+  return trialsByArtwork.get(artwork, key, () => makeTrials(artwork, inspectPx, margin));
+}
+
+function makeTrials(artwork: RgbaImage, inspectPx: PxRect, margin: number): ArtworkTrials {
   const sites = edgeSites(artwork, inspectPx, margin);
   const side = WINDOW + 2 * margin, mosaicW = side * sites.length;
   // The trials run in green alone: blur shows in every channel alike, and green carries most of the lightness.
@@ -116,9 +118,7 @@ function artworkTrials(artwork: RgbaImage, inspectPx: PxRect, margin: number, si
       for (let col = 0; col < side; col++) linear[row * mosaicW + k * side + col] = SRGB8_TO_LINEAR[artwork.data[from + col * 4 + 1]];
     }
   });
-  const trials = { key, sites, linear, low: new Map<number, Float32Array>() };
-  trialsByArtwork.set(artwork.data.buffer, trials);
-  return trials;
+  return { sites, linear, low: new Map<number, Float32Array>() };
 }
 
 /** The low-pass kernel ends where it falls under this share of its peak, as sharp's default does. */

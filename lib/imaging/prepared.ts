@@ -6,6 +6,7 @@
 // the comparison takes it from the low-pass through its colour cache); larger pages
 // (a B1 sheet at 300 dpi is ~98 megapixels) are prepared band by band for each sheet instead, so memory stays
 // bounded. Never shared between threads.
+import { ArtworkCache } from "./artwork-cache";
 import { rgbaToLab } from "./colour";
 import { lowPass } from "./normalise";
 import { opticalBlur } from "./optics";
@@ -44,7 +45,8 @@ export interface PreparedRect {
 }
 
 export const CACHE_MAX_PIXELS = 24_000_000;
-const cache = new WeakMap<ArrayBufferLike, Map<string, PreparedRect>>();
+/** One scanner's sheets keep to one or two blur steps: two preparations of a page at most. */
+const cache = new ArtworkCache<PreparedRect>(2);
 
 /**
  * The prepared artwork over `rect`: a view into the cached whole page when the page is small enough, else
@@ -52,16 +54,8 @@ const cache = new WeakMap<ArrayBufferLike, Map<string, PreparedRect>>();
  */
 export async function preparedRect(art: RgbaImage, rect: PxRect, w: ContrastWindows): Promise<PreparedRect> {
   if (art.width * art.height > CACHE_MAX_PIXELS) return prepare(art, rect, w);
-  const key = `${art.data.byteOffset}:${art.width}x${art.height}:${w.opticalBlurPx}:${w.sigmaPx}:${w.radiusPx}:${w.reachPx}`;
-  let byKey = cache.get(art.data.buffer);
-  if (!byKey) cache.set(art.data.buffer, (byKey = new Map()));
-  let whole = byKey.get(key);
-  if (!whole) {
-    whole = await prepare(art, { x: 0, y: 0, w: art.width, h: art.height }, w);
-    // One scanner's sheets keep to one or two blur steps: hold two preparations of a page at most.
-    if (byKey.size >= 2) byKey.delete(byKey.keys().next().value!);
-    byKey.set(key, whole);
-  }
+  const key = `${w.opticalBlurPx}:${w.sigmaPx}:${w.radiusPx}:${w.reachPx}`;
+  const whole = cache.peek(art, key) ?? cache.put(art, key, await prepare(art, { x: 0, y: 0, w: art.width, h: art.height }, w));
   return sub(whole, rect);
 }
 

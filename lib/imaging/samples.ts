@@ -3,6 +3,7 @@
 // flatness) is the same for every sheet and is kept per artwork and thread. "Flat" pairs lie where the artwork is uniform over the
 // whole radius of the low-pass and registration tolerance, so misregistration cannot bias them; "all" pairs
 // (window means of both) feed the percentile anchors of the tone curves.
+import { ArtworkCache } from "./artwork-cache";
 import { linearToSrgb255Fast, SRGB8_TO_LINEAR } from "./colour";
 import type { AffineMap, PxRect } from "./raster";
 import type { RgbaImage } from "./types";
@@ -31,15 +32,10 @@ interface ArtworkGrid {
   count: number;
 }
 
-const grids = new WeakMap<ArrayBufferLike, Map<string, ArtworkGrid>>();
+const grids = new ArtworkCache<ArtworkGrid>();
 
 function artworkGrid(artwork: RgbaImage, radiusPx: number): ArtworkGrid {
-  const key = `${artwork.data.byteOffset}:${artwork.width}x${artwork.height}:${radiusPx}`;
-  let byKey = grids.get(artwork.data.buffer);
-  if (!byKey) grids.set(artwork.data.buffer, (byKey = new Map()));
-  let grid = byKey.get(key);
-  if (!grid) byKey.set(key, (grid = makeGrid(artwork, radiusPx)));
-  return grid;
+  return grids.get(artwork, String(radiusPx), () => makeGrid(artwork, radiusPx));
 }
 
 function makeGrid(artwork: RgbaImage, radiusPx: number): ArtworkGrid {
