@@ -59,7 +59,15 @@ export const ARTWORK_STATUSES = ["draft", "approved", "superseded"] as const;
 export const RASTER_STATUSES = ["none", "pending", "ready", "failed"] as const;
 export const INSPECTION_STATUSES = ["queued", "running", "done", "failed"] as const;
 export const VERDICTS = ["pending", "passed", "failed"] as const;
-export const FINDING_KINDS = ["extra_ink", "missing_ink", "colour_shift"] as const;
+// extra_ink / missing_ink are spots and voids; changed_text is a changed or missing piece of text or linework;
+// streak is a scratch or streak (long and thin).
+export const FINDING_KINDS = ["extra_ink", "missing_ink", "colour_shift", "changed_text", "streak"] as const;
+export const DECISION_REASONS = ["no_defect", "within_tolerance", "defect"] as const;
+/** How a finding stands in its press run: once, at the same place on consecutive sheets, or in every up. */
+export const RECURRENCES = ["isolated", "repeating", "every_up"] as const;
+export const TILE_STATUSES = ["none", "pending", "ready", "failed"] as const;
+/** What a reviewer's signature on a sheet means. */
+export const SIGNATURE_MEANINGS = ["reviewed", "approved_for_release", "rejected"] as const;
 export const DECISIONS = ["pending", "accepted", "rejected"] as const;
 
 export interface RectMm {
@@ -69,9 +77,22 @@ export interface RectMm {
   h: number;
 }
 
+/**
+ * An area the engine reports nothing inside (variable data: lot, expiry, sheet numbers, codes printed later).
+ * "sheet": x/y from the top-left of the artwork page; "up": x/y from the top-left of each up, repeated in every up.
+ */
+export interface ExcludedArea extends RectMm {
+  scope: "sheet" | "up";
+  label: string;
+}
+
 export const customers = mysqlTable("customers", {
   id: id(),
   name: varchar("name", { length: 200 }).notNull().unique(),
+  // Who is told of sign-offs (lower-cased addresses).
+  contactEmails: json<string[]>("contact_emails")
+    .notNull()
+    .default(sql`('[]')`),
   createdAt: createdAt(),
   updatedAt: updatedAt(),
 });
@@ -129,6 +150,11 @@ export const jobs = mysqlTable(
     artworkDpi: smallint("artwork_dpi", { unsigned: true }).notNull().default(300),
     upsRows: smallint("ups_rows", { unsigned: true }).notNull().default(1),
     upsColumns: smallint("ups_columns", { unsigned: true }).notNull().default(1),
+    boardThicknessUm: int("board_thickness_um", { unsigned: true }),
+    // Sheets the press run is to print; null until known.
+    runLengthSheets: int("run_length_sheets", { unsigned: true }),
+    // The job's tolerance profile for new inspections; null means the plant's default.
+    toleranceProfileId: ref("tolerance_profile_id").references(() => toleranceProfiles.id),
     createdBy: ref("created_by").references(() => users.id),
     createdAt: createdAt(),
     updatedAt: updatedAt(),
@@ -161,6 +187,10 @@ export const artworkRevisions = mysqlTable(
     upsAreaWUm: int("ups_area_w_um", { unsigned: true }),
     upsAreaHUm: int("ups_area_h_um", { unsigned: true }),
     status: mysqlEnum("status", ARTWORK_STATUSES).notNull().default("draft"),
+    excludedAreas: json<ExcludedArea[]>("excluded_areas")
+      .notNull()
+      .default(sql`('[]')`),
+    supersededAt: at("superseded_at"),
     uploadedBy: ref("uploaded_by").references(() => users.id),
     approvedBy: ref("approved_by").references(() => users.id),
     approvedAt: at("approved_at"),
@@ -169,6 +199,8 @@ export const artworkRevisions = mysqlTable(
     rasterDpi: smallint("raster_dpi", { unsigned: true }),
     rasterKeys: json<string[]>("raster_keys"),
     rasterError: text("raster_error"),
+    // The artwork's side of the comparison, prepared once by the raster job for every worker host.
+    preparedKey: objectKey("prepared_key"),
     createdAt: createdAt(),
     updatedAt: updatedAt(),
   },
@@ -252,6 +284,9 @@ export const inspections = mysqlTable(
     // The words the reviewer signed with (name, role, statement), kept as written.
     signature: text("signature"),
     timingsMs: json<Record<string, number>>("timings_ms"),
+    // Deep-zoom tile pyramids (artwork, aligned scan, difference) under one key prefix.
+    tilesStatus: mysqlEnum("tiles_status", TILE_STATUSES).notNull().default("none"),
+    tilesPrefix: objectKey("tiles_prefix"),
     attempts: smallint("attempts", { unsigned: true }).notNull().default(0),
     // Bumped on every user-visible change; a stale sign-off is refused.
     version: int("version", { unsigned: true }).notNull().default(0),
@@ -290,7 +325,11 @@ export const findings = mysqlTable(
     decision: mysqlEnum("decision", DECISIONS).notNull().default("pending"),
     decidedBy: ref("decided_by").references(() => users.id),
     decidedAt: at("decided_at"),
+    decisionReason: mysqlEnum("decision_reason", DECISION_REASONS),
     comment: text("comment"),
+    recurrence: mysqlEnum("recurrence", RECURRENCES),
+    // Run memory: the accepted finding of an earlier sheet at the same place, suggested but never applied alone.
+    priorFindingId: ref("prior_finding_id"),
     // Optimistic concurrency: an update names the version it saw.
     version: int("version", { unsigned: true }).notNull().default(0),
     createdAt: createdAt(),
@@ -317,6 +356,33 @@ export const auditEvents = mysqlTable(
     index("audit_events_subject_idx").on(t.subjectType, t.subjectId),
     index("audit_events_at_idx").on(t.at),
   ],
+);
+
+/**
+ * A reviewer's signature on a sheet: kept as signed, with a sha256 over the inspection's record at that moment.
+ * Reopening (an administrator, with a reason) fills the reopened_* columns; the row itself stays.
+ */
+export const sheetSignoffs = mysqlTable(
+  "sheet_signoffs",
+  {
+    id: id(),
+    inspectionId: ref("inspection_id")
+      .notNull()
+      .references(() => inspections.id),
+    signedBy: ref("signed_by")
+      .notNull()
+      .references(() => users.id),
+    signerName: varchar("signer_name", { length: 200 }).notNull(),
+    signerRole: varchar("signer_role", { length: 32 }).notNull(),
+    meaning: mysqlEnum("meaning", SIGNATURE_MEANINGS).notNull(),
+    verdict: mysqlEnum("verdict", ["passed", "failed"]).notNull(),
+    recordSha256: sha256("record_sha256").notNull(),
+    signedAt: datetime("signed_at", { mode: "date", fsp: 3 }).notNull(),
+    reopenedBy: ref("reopened_by").references(() => users.id),
+    reopenedAt: at("reopened_at"),
+    reopenReason: text("reopen_reason"),
+  },
+  (t) => [index("sheet_signoffs_inspection_idx").on(t.inspectionId)],
 );
 
 export const apiTokens = mysqlTable(
@@ -380,3 +446,4 @@ export type Inspection = typeof inspections.$inferSelect;
 export type FindingRow = typeof findings.$inferSelect;
 export type AuditEvent = typeof auditEvents.$inferSelect;
 export type ApiToken = typeof apiTokens.$inferSelect;
+export type SheetSignoff = typeof sheetSignoffs.$inferSelect;

@@ -3,7 +3,13 @@
 import { useQuery } from "@tanstack/react-query";
 import type { FindingView } from "@/lib/pipeline/inspections";
 
-const kindLabel = { extra_ink: "Extra ink", missing_ink: "Missing ink", colour_shift: "Colour shift" } as const;
+const kindLabel: Record<FindingView["kind"], string> = {
+  extra_ink: "Extra ink",
+  missing_ink: "Missing ink",
+  colour_shift: "Colour shift",
+  changed_text: "Changed text or linework",
+  streak: "Streak or scratch",
+};
 
 export function FindingsList({ inspectionId }: { inspectionId: number }) {
   const { data, error, isPending } = useQuery({

@@ -212,7 +212,13 @@ function summary(r: InspectionResult, args: Args): string {
   return lines.join("\n") + "\n";
 }
 
-const KIND_COLOUR: Record<Finding["kind"], string> = { extra_ink: "#d0021b", missing_ink: "#0057d9", colour_shift: "#f5a000" };
+const KIND_COLOUR: Record<Finding["kind"], string> = {
+  extra_ink: "#d0021b",
+  missing_ink: "#0057d9",
+  colour_shift: "#f5a000",
+  changed_text: "#7b2cbf",
+  streak: "#008a5e",
+};
 
 /** The artwork with a box around every finding, written whole or not at all (temporary file, then rename). */
 async function writeAnnotated(out: string, artwork: ArtworkRaster, findings: Finding[]): Promise<void> {

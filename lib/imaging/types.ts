@@ -79,7 +79,8 @@ export interface DisplacementField {
   dy: number[];
 }
 
-export type FindingKind = "extra_ink" | "missing_ink" | "colour_shift";
+/** Spots (extra_ink) and voids (missing_ink), colour shifts, changed or missing text or linework, streaks and scratches. */
+export type FindingKind = "extra_ink" | "missing_ink" | "colour_shift" | "changed_text" | "streak";
 
 export interface Finding {
   xMm: number;

@@ -7,6 +7,7 @@ import { authorize, type Actor } from "@/lib/auth/policy";
 import { notFound } from "@/lib/errors";
 import { enqueueInspection } from "@/lib/queue/queues";
 import type { CropKind } from "@/storage/keys";
+import type { FindingKind } from "@/lib/imaging/types";
 import { conflict, loadJobFor } from "./access";
 
 async function loadInspection(id: number) {
@@ -52,7 +53,7 @@ export async function cropKeyFor(actor: Actor, inspectionId: number, findingId: 
 
 export interface FindingView {
   id: number;
-  kind: "extra_ink" | "missing_ink" | "colour_shift";
+  kind: FindingKind;
   xMm: number;
   yMm: number;
   wMm: number;

@@ -9,7 +9,7 @@ const dataDir = process.env.TYMPAN_DATA_DIR ?? path.join(root, ".data/test");
 const runDir = path.join(dataDir, "run");
 
 export function startMissingServices(): void {
-  execFileSync("bash", ["scripts/services.sh", "start"], { cwd: root, env: { ...process.env, TYMPAN_DATA_DIR: dataDir, MAILDEV_WEB_PORT: "1090" }, stdio: "ignore" });
+  execFileSync("bash", ["scripts/services.sh", "start"], { cwd: root, env: { ...process.env, TYMPAN_DATA_DIR: dataDir, MAILDEV_WEB_PORT: process.env.MAILDEV_WEB_PORT ?? "1090" }, stdio: "ignore" });
 }
 
 const pidOf = (name: string) => Number(readFileSync(path.join(runDir, `${name}.pid`), "utf8").trim());
