@@ -19,6 +19,8 @@ export interface Actor {
 export type Action =
   | "job.read"
   | "job.create"
+  | "job.update"
+  | "customer.manage"
   | "artwork.upload"
   | "artwork.approve"
   | "scan.upload"
@@ -26,6 +28,7 @@ export type Action =
   | "inspection.retry"
   | "finding.decide"
   | "sheet.signoff"
+  | "sheet.reopen"
   | "user.manage"
   | "settings.manage"
   | "audit.read";
@@ -33,6 +36,8 @@ export type Action =
 export const ACTIONS: readonly Action[] = [
   "job.read",
   "job.create",
+  "job.update",
+  "customer.manage",
   "artwork.upload",
   "artwork.approve",
   "scan.upload",
@@ -40,6 +45,7 @@ export const ACTIONS: readonly Action[] = [
   "inspection.retry",
   "finding.decide",
   "sheet.signoff",
+  "sheet.reopen",
   "user.manage",
   "settings.manage",
   "audit.read",
@@ -47,7 +53,7 @@ export const ACTIONS: readonly Action[] = [
 
 /** What each staff role may do. Admin may do everything; customers are handled apart (their own jobs only). */
 const staffGrants: Record<Exclude<Role, "admin" | "customer">, ReadonlySet<Action>> = {
-  prepress: new Set(["job.read", "job.create", "artwork.upload", "artwork.approve", "inspection.read"]),
+  prepress: new Set(["job.read", "job.create", "job.update", "customer.manage", "artwork.upload", "artwork.approve", "inspection.read"]),
   qa: new Set(["job.read", "scan.upload", "inspection.read", "inspection.retry"]),
   reviewer: new Set(["job.read", "inspection.read", "finding.decide", "sheet.signoff"]),
 };

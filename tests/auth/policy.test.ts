@@ -8,7 +8,7 @@ import { ACTIONS, authorize, can, ROLES, type Action, type Actor, type Role } fr
 
 const allowed: Record<Exclude<Role, "customer">, Action[]> = {
   admin: [...ACTIONS],
-  prepress: ["job.read", "job.create", "artwork.upload", "artwork.approve", "inspection.read"],
+  prepress: ["job.read", "job.create", "job.update", "customer.manage", "artwork.upload", "artwork.approve", "inspection.read"],
   qa: ["job.read", "scan.upload", "inspection.read", "inspection.retry"],
   reviewer: ["job.read", "inspection.read", "finding.decide", "sheet.signoff"],
 };
