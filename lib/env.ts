@@ -24,7 +24,10 @@ const schema = z.object({
   SMTP_URL: z.string().default("smtp://127.0.0.1:1025"),
   MAIL_FROM: z.string().default("Tympan <tympan@example.test>"),
   APP_URL: z.url().default("http://127.0.0.1:3000"),
-  NEXTAUTH_SECRET: z.string().min(16).default("tympan-local-development-secret-change-me"),
+  NEXTAUTH_SECRET: z.string().min(32, "must be at least 32 characters (e.g. `openssl rand -base64 32`)").optional(),
+  /** Failed sign-ins or refused tokens allowed per account, and per client address, in 15 minutes. */
+  RATE_LIMIT_ACCOUNT_FAILURES: z.coerce.number().int().positive().default(10),
+  RATE_LIMIT_ADDRESS_FAILURES: z.coerce.number().int().positive().default(50),
   ARTWORK_MAX_BYTES: z.coerce.number().int().positive().default(200 * MB),
   SCAN_MAX_BYTES: z.coerce.number().int().positive().default(500 * MB),
   WORKER_CONCURRENCY: z.coerce.number().int().positive().default(os.availableParallelism()),
@@ -36,13 +39,33 @@ const schema = z.object({
   ARTWORK_DPI: z.coerce.number().int().min(72).max(600).default(300),
 });
 
+const DEVELOPMENT_SECRET = "tympan-local-development-secret-change-me";
+
+/**
+ * Session tokens are signed with NEXTAUTH_SECRET. A known default would let anyone forge a session, so only
+ * development (`next dev`, tests, scripts) may fall back to it; `next start` runs with NODE_ENV=production and
+ * must be given a secret. `next build` also runs as production but signs nothing: it gets the default too.
+ */
+function sessionSecret(value: string | undefined): string {
+  if (value) return value;
+  const building = process.env.NEXT_PHASE === "phase-production-build";
+  if (process.env.NODE_ENV === "production" && !building) {
+    throw new Error(
+      "NEXTAUTH_SECRET is not set. Outside development Tympan needs its own secret to sign sessions: " +
+        "set NEXTAUTH_SECRET to a random value of 32 characters or more (for instance `openssl rand -base64 32`) " +
+        "in the environment or in .env, the same on every web host.",
+    );
+  }
+  return DEVELOPMENT_SECRET;
+}
+
 function load() {
   const parsed = schema.safeParse(process.env);
   if (!parsed.success) {
     const lines = parsed.error.issues.map((i) => `  ${i.path.join(".")}: ${i.message}`).join("\n");
     throw new Error(`Invalid configuration in the environment:\n${lines}`);
   }
-  return parsed.data;
+  return { ...parsed.data, NEXTAUTH_SECRET: sessionSecret(parsed.data.NEXTAUTH_SECRET) };
 }
 
 export const env = load();

@@ -8,6 +8,7 @@ source "$(dirname "${BASH_SOURCE[0]}")/env.sh"
 cd "$ROOT"
 load_dotenv
 ensure_node_modules
+ensure_session_secret "${TYMPAN_DATA_DIR:-$ROOT/.data}"
 
 bash scripts/services.sh start
 node_modules/.bin/tsx db/migrate.ts
@@ -53,7 +54,7 @@ cat <<MSG
 
 Tympan is running at $APP_URL
 Sign in as, for example, admin@wrenfold.example with the password tympan-demo
-(all demo accounts are listed in README.md). Invitation e-mails arrive at http://127.0.0.1:${MAILDEV_WEB_PORT:-1080}
+(all demo accounts are listed in README.md). Invitation e-mails arrive at http://127.0.0.1:${MAILDEV_WEB_PORT:-1080}/index.html
 Press Ctrl-C to stop.
 MSG
 # The demo lasts as long as the app; a worker that stops prints its own error and the app stays up.

@@ -26,3 +26,16 @@ ensure_node_modules() {
     (cd "$ROOT" && npm install --no-audit --no-fund)
   fi
 }
+
+# next start runs as production and needs NEXTAUTH_SECRET (lib/env.ts). When the caller gave none, use one kept in
+# the data directory (made once, readable by this user only), so sessions survive a restart of the demo.
+ensure_session_secret() {
+  [[ -n "${NEXTAUTH_SECRET:-}" ]] && return 0
+  local dir="$1" file="$1/session-secret"
+  mkdir -p "$dir"
+  if [[ ! -s "$file" ]]; then
+    (umask 077 && node -e 'process.stdout.write(require("crypto").randomBytes(32).toString("base64url"))' >"$file")
+  fi
+  NEXTAUTH_SECRET="$(cat "$file")"
+  export NEXTAUTH_SECRET
+}

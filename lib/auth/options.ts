@@ -4,6 +4,7 @@ import type { NextAuthOptions } from "next-auth";
 import CredentialsProvider from "next-auth/providers/credentials";
 import { env } from "../env";
 import { verifyCredentials } from "./credentials";
+import { clientAddress } from "./rate-limit";
 import type { Role } from "./policy";
 
 process.env.NEXTAUTH_URL ??= env.APP_URL;
@@ -21,8 +22,8 @@ export const authOptions: NextAuthOptions = {
         email: { label: "E-mail", type: "email" },
         password: { label: "Password", type: "password" },
       },
-      async authorize(credentials) {
-        const actor = await verifyCredentials(credentials);
+      async authorize(credentials, request) {
+        const actor = await verifyCredentials(credentials, clientAddress(new Headers(request?.headers as Record<string, string> | undefined)));
         if (!actor) return null;
         return { id: String(actor.id), name: actor.name, email: actor.email, role: actor.role, customerId: actor.customerId };
       },

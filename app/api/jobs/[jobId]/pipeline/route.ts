@@ -1,5 +1,5 @@
 // GET: artwork revisions, sheets and their inspections' live stage and percent (polled by the job page).
-import { actorOrThrow } from "@/lib/auth/session";
+import { requestActor } from "@/lib/auth/request-actor";
 import { errorResponse } from "@/lib/errors";
 import { parseId } from "@/lib/pipeline/access";
 import { getJobPipeline } from "@/lib/pipeline/view";
@@ -7,9 +7,9 @@ import { getJobPipeline } from "@/lib/pipeline/view";
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-export async function GET(_request: Request, ctx: { params: Promise<{ jobId: string }> }) {
+export async function GET(request: Request, ctx: { params: Promise<{ jobId: string }> }) {
   try {
-    const actor = await actorOrThrow();
+    const actor = await requestActor(request);
     const view = await getJobPipeline(actor, parseId((await ctx.params).jobId, "The job"));
     return Response.json(view, { headers: { "Cache-Control": "no-store" } });
   } catch (error) {

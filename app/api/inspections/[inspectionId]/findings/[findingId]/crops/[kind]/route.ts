@@ -1,7 +1,7 @@
 // GET: one crop image of a finding (artwork, scan or difference), streamed from storage after the policy check.
 // Streaming through the app keeps the bucket private: no storage URL ever reaches the browser.
 import { Readable } from "node:stream";
-import { actorOrThrow } from "@/lib/auth/session";
+import { requestActor } from "@/lib/auth/request-actor";
 import { errorResponse, notFound } from "@/lib/errors";
 import { parseId } from "@/lib/pipeline/access";
 import { cropKeyFor } from "@/lib/pipeline/inspections";
@@ -12,11 +12,11 @@ export const runtime = "nodejs";
 const KINDS: readonly CropKind[] = ["artwork", "scan", "difference"];
 
 export async function GET(
-  _request: Request,
+  request: Request,
   ctx: { params: Promise<{ inspectionId: string; findingId: string; kind: string }> },
 ) {
   try {
-    const actor = await actorOrThrow();
+    const actor = await requestActor(request);
     const params = await ctx.params;
     if (!KINDS.includes(params.kind as CropKind)) throw notFound("The crop image");
     const key = await cropKeyFor(
