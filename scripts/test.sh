@@ -35,9 +35,9 @@ rm -f "$JSON" "$SUMMARY"
 
 ensure_node_modules
 ensure_session_secret "$TYMPAN_DATA_DIR"
-# Every test runs from 127.0.0.1: the per-address limit would soon refuse the suite itself. The per-address
-# limit is tested with its own small allowance (tests/auth/rate-limit.test.ts).
-export RATE_LIMIT_ADDRESS_FAILURES=100000
+# Every test runs from 127.0.0.1 and refuses tokens on purpose: the limits would soon refuse the suite itself. They
+# are tested with their own small allowances (tests/auth/rate-limit.test.ts).
+export RATE_LIMIT_ADDRESS_FAILURES=100000 RATE_LIMIT_ACCOUNT_FAILURES=100000
 
 # One test run at a time on this machine: they share the test database and ports.
 exec 9>"$RUN_DIR/test.lock"

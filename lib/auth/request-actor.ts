@@ -31,7 +31,7 @@ function parseCookies(header: string | null): Map<string, string> {
 
 /** True when a browser tells us the request came from a page of another origin. */
 export function isCrossOrigin(request: Request): boolean {
-  const allowed = new Set([new URL(env.APP_URL).origin]);
+  const allowed = new Set([new URL(env.APP_URL).origin, new URL(request.url).origin]);
   const host = request.headers.get("host");
   if (host) allowed.add(`${new URL(request.url).protocol}//${host}`);
   const origin = request.headers.get("origin");

@@ -1,5 +1,5 @@
 // Inspections as users act on them: retry a failed one (QA, admin), read a finding's crop image.
-import { eq } from "drizzle-orm";
+import { eq, sql } from "drizzle-orm";
 import { db } from "@/db/client";
 import { findings, inspections, scans } from "@/db/schema";
 import { recordAudit } from "@/lib/audit";
@@ -94,4 +94,69 @@ export async function listFindings(actor: Actor, inspectionId: number): Promise<
           }
         : null,
     }));
+}
+
+export interface InspectionView {
+  id: number;
+  jobId: number;
+  scanId: number;
+  sheetNumber: number | null;
+  status: "queued" | "running" | "done" | "failed";
+  stage: string | null;
+  percent: number;
+  attempts: number;
+  errorCode: string | null;
+  errorMessage: string | null;
+  /** Scan to artwork: rotation in degrees, scale, shift and residual in mm. Null until aligned. */
+  alignment: { rotationDeg: number; scale: number; txMm: number; tyMm: number; residualMm: number | null; correlation: number | null } | null;
+  /** The part of the artwork page the scan covered, in mm from the trim box's top-left. */
+  coveredArea: { xMm: number; yMm: number; wMm: number; hMm: number } | null;
+  /** Overall colour drift of the sheet against the artwork (ΔE00; indicative, a flatbed is not a spectrophotometer). */
+  driftDeltaE00: number | null;
+  findingsCount: number;
+  verdict: "pending" | "passed" | "failed";
+  createdAt: string;
+  startedAt: string | null;
+  finishedAt: string | null;
+}
+
+const mm = (um: number | null) => (um === null ? null : um / 1000);
+const isoOrNull = (d: Date | null) => (d ? d.toISOString() : null);
+
+/** One inspection as the API shows it, after the policy check on its job. */
+export async function getInspection(actor: Actor, inspectionId: number): Promise<InspectionView> {
+  const [row] = await db
+    .select({ inspection: inspections, scan: scans })
+    .from(inspections)
+    .innerJoin(scans, eq(scans.id, inspections.scanId))
+    .where(eq(inspections.id, inspectionId))
+    .limit(1);
+  if (!row) throw notFound("The inspection");
+  await loadJobFor(actor, row.scan.jobId, "inspection.read");
+  const i = row.inspection;
+  const [{ count }] = await db.select({ count: sql<number>`count(*)`.mapWith(Number) }).from(findings).where(eq(findings.inspectionId, i.id));
+  const aligned = i.rotationDeg !== null && i.scale !== null && i.txUm !== null && i.tyUm !== null;
+  const covered = i.coveredXUm !== null && i.coveredYUm !== null && i.coveredWUm !== null && i.coveredHUm !== null;
+  return {
+    id: i.id,
+    jobId: row.scan.jobId,
+    scanId: row.scan.id,
+    sheetNumber: row.scan.sheetNumber,
+    status: i.status,
+    stage: i.stage,
+    percent: i.progressPercent,
+    attempts: i.attempts,
+    errorCode: i.errorCode,
+    errorMessage: i.errorMessage,
+    alignment: aligned
+      ? { rotationDeg: i.rotationDeg!, scale: i.scale!, txMm: i.txUm! / 1000, tyMm: i.tyUm! / 1000, residualMm: mm(i.residualUm), correlation: i.correlation }
+      : null,
+    coveredArea: covered ? { xMm: i.coveredXUm! / 1000, yMm: i.coveredYUm! / 1000, wMm: i.coveredWUm! / 1000, hMm: i.coveredHUm! / 1000 } : null,
+    driftDeltaE00: i.driftDeltaE00,
+    findingsCount: count,
+    verdict: i.verdict,
+    createdAt: i.createdAt.toISOString(),
+    startedAt: isoOrNull(i.startedAt),
+    finishedAt: isoOrNull(i.finishedAt),
+  };
 }

@@ -37,11 +37,24 @@ function sheetNumberFor(file: ReceivedFile, fields: Record<string, string>, sing
   if (typed !== undefined && typed.trim() !== "") {
     const parsed = parseSheetNumber(typed);
     if (parsed === null) {
-      throw new AppError("bad_sheet_number", `The sheet number “${typed}” for “${file.fileName}” is not a whole number above 0.`, 422);
+      throw new AppError("bad_sheet_number", `The sheet number “${typed.slice(0, 20)}” for “${file.fileName}” is not a whole number above 0.`, 422);
     }
     return parsed;
   }
   return sheetNumberFromName(file.fileName);
+}
+
+/** Scanners work between 50 and 4800 dpi; outside that the number is a typing error, not a resolution. */
+export const SCAN_DPI_RANGE = { min: 50, max: 4800 } as const;
+
+/** The resolution typed for the upload, or 0 (take it from the file) when none was given. */
+function parseDeclaredDpi(text: string | undefined): number {
+  if (text === undefined || text.trim() === "") return 0;
+  const value = /^\d{1,5}$/.test(text.trim()) ? Number(text.trim()) : NaN;
+  if (!(value >= SCAN_DPI_RANGE.min && value <= SCAN_DPI_RANGE.max)) {
+    throw new AppError("bad_dpi", `The resolution “${text.slice(0, 20)}” is not a whole number of dpi from ${SCAN_DPI_RANGE.min} to ${SCAN_DPI_RANGE.max}.`, 422);
+  }
+  return value;
 }
 
 /** Streams one or more scans into storage; a scan already uploaded to this job is recognised and not stored twice. */
@@ -61,7 +74,7 @@ export async function uploadScans(actor: Actor, jobId: number, request: Request)
     const single = upload.files.length === 1;
     const numbers = upload.files.map((f) => sheetNumberFor(f, upload.fields, single));
     const profile = await chooseProfile(upload.fields.profile || undefined);
-    const declaredDpi = parseSheetNumber(upload.fields.dpi) ?? 0;
+    const declaredDpi = parseDeclaredDpi(upload.fields.dpi);
     const items = await db.transaction(async (tx) => {
       const known = await tx
         .select({ id: scans.id, sha256: scans.sha256, sheetNumber: scans.sheetNumber })

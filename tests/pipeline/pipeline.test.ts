@@ -15,7 +15,7 @@ import { pngHeaderClaiming } from "./support/files";
 import { emptyQueues, maildev, startWorker, type WorkerProcess } from "./support/worker-process";
 
 let actor: Actor;
-vi.mock("@/lib/auth/session", () => ({ actorOrThrow: async () => actor }));
+vi.mock("@/lib/auth/request-actor", () => ({ requestActor: async () => actor }));
 const { POST: postArtwork } = await import("@/app/api/jobs/[jobId]/artworks/route");
 const { POST: postScans } = await import("@/app/api/jobs/[jobId]/scans/route");
 const { GET: getPipeline } = await import("@/app/api/jobs/[jobId]/pipeline/route");

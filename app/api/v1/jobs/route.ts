@@ -1,0 +1,17 @@
+// GET /api/v1/jobs: the jobs the caller may read (customer users: their own customer's), newest change first.
+import { json, page, readQuery, route } from "@/lib/api/http";
+import { PageQuery } from "@/lib/api/schemas";
+import { jobSummary } from "@/lib/api/views";
+import { requestActor } from "@/lib/auth/request-actor";
+import { listJobsForActor } from "@/lib/jobs/queries";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+export const GET = route(async (request) => {
+  const actor = await requestActor(request);
+  const query = readQuery(request, PageQuery);
+  const jobs = await listJobsForActor(actor);
+  const result = page(jobs, (j) => [j.updatedAt.toISOString(), j.id], query.limit, query.cursor);
+  return json({ items: result.items.map(jobSummary), nextCursor: result.nextCursor });
+});
