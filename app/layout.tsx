@@ -1,5 +1,6 @@
 import type { Metadata } from "next";
 import localFont from "next/font/local";
+import { connection } from "next/server";
 import "./globals.css";
 
 // Shipped with the app (no font download at build or run time).
@@ -15,7 +16,10 @@ export const metadata: Metadata = {
   description: "Press-sheet inspection against approved artwork.",
 };
 
-export default function RootLayout({ children }: { children: React.ReactNode }) {
+// Every page renders per request: the content security policy's nonce (proxy.ts) is new each time, and Next can
+// only put it on its scripts while rendering.
+export default async function RootLayout({ children }: { children: React.ReactNode }) {
+  await connection();
   return (
     <html lang="en" className={inter.variable}>
       <body className="min-h-screen font-sans">{children}</body>

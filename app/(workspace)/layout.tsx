@@ -11,6 +11,7 @@ export default async function WorkspaceLayout({ children }: { children: React.Re
   const actor = await requireActor();
   const items: NavItem[] = [{ href: "/", label: "Jobs" }];
   if (can(actor, "user.manage")) items.push({ href: "/admin/users", label: "Users" });
+  items.push({ href: "/settings/tokens", label: "API tokens" });
   return (
     <div className="flex min-h-screen flex-col">
       <header className="border-b border-rule bg-surface">

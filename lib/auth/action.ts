@@ -8,6 +8,8 @@ import { actorOrThrow } from "./session";
 
 export interface ActionState {
   ok?: string;
+  /** A secret shown once after it was made (a new API token); never echoed again. */
+  secret?: string;
   error?: string;
   fieldErrors?: Record<string, string[] | undefined>;
   /** The submitted values, echoed back so a refused form keeps what was typed. */

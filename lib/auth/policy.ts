@@ -31,7 +31,9 @@ export type Action =
   | "sheet.reopen"
   | "user.manage"
   | "settings.manage"
-  | "audit.read";
+  | "audit.read"
+  /** Create and revoke one's own API tokens (every signed-in user; ownership is checked by lib/auth/tokens.ts). */
+  | "api_token.manage";
 
 export const ACTIONS: readonly Action[] = [
   "job.read",
@@ -49,6 +51,7 @@ export const ACTIONS: readonly Action[] = [
   "user.manage",
   "settings.manage",
   "audit.read",
+  "api_token.manage",
 ];
 
 /** What each staff role may do. Admin may do everything; customers are handled apart (their own jobs only). */
@@ -71,6 +74,7 @@ export interface Resource {
  * Staff roles act on every customer's jobs.
  */
 export function can(actor: Actor, action: Action, resource?: Resource): boolean {
+  if (action === "api_token.manage") return true;
   switch (actor.role) {
     case "admin":
       return true;

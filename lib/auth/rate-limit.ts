@@ -53,7 +53,7 @@ export async function retryAfter(kind: LimitKind, subject: LimitSubject): Promis
   let wait = 0;
   for (const [l, key] of checks) {
     const state = await l.get(key).catch(() => null);
-    if (state && state.consumedPoints > l.points) wait = Math.max(wait, Math.ceil(state.msBeforeNext / 1000));
+    if (state && state.consumedPoints >= l.points) wait = Math.max(wait, Math.ceil(state.msBeforeNext / 1000));
   }
   return wait > 0 ? wait : null;
 }
