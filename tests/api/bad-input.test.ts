@@ -125,7 +125,7 @@ describe("bad input", () => {
       ["multipart/form-data; boundary=XYZ", "--XYZ\r\nContent-Disposition: form-data; name=\"file\"; filename=\"a.png\"\r\n\r\n\u0089PNG trunc"],
       ["multipart/form-data; boundary=XYZ", "--XYZ--\r\n"],
       ["multipart/form-data; boundary=XYZ", "garbage without any boundary line"],
-      ["application/octet-stream", png],
+      ["application/octet-stream", new Uint8Array(png)],
       ["text/plain", "hello"],
     ];
     for (const [type, body] of bodies) {
