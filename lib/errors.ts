@@ -6,6 +6,8 @@ export class AppError extends Error {
     readonly code: string,
     message: string,
     readonly status = 400,
+    /** Messages per input field, for a form to show beside each field (and an API client to read). */
+    readonly fieldErrors?: Record<string, string[]>,
   ) {
     super(message);
     this.name = "AppError";
@@ -16,9 +18,18 @@ export const notSignedIn = () => new AppError("not_signed_in", "Please sign in f
 export const forbidden = () => new AppError("forbidden", "Your role does not allow this.", 403);
 export const notFound = (what: string) => new AppError("not_found", `${what} was not found.`, 404);
 
-export function errorBody(error: unknown): { status: number; body: { error: { code: string; message: string } } } {
+/** Bad input, named field by field (422). */
+export const invalidInput = (fieldErrors: Record<string, string[]>, message = "Please correct the marked fields.") =>
+  new AppError("invalid_input", message, 422, fieldErrors);
+
+export interface ErrorBody {
+  error: { code: string; message: string; fields?: Record<string, string[]> };
+}
+
+export function errorBody(error: unknown): { status: number; body: ErrorBody } {
   if (error instanceof AppError) {
-    return { status: error.status, body: { error: { code: error.code, message: error.message } } };
+    const fields = error.fieldErrors ? { fields: error.fieldErrors } : {};
+    return { status: error.status, body: { error: { code: error.code, message: error.message, ...fields } } };
   }
   return {
     status: 500,
