@@ -6,6 +6,8 @@ const nextConfig: NextConfig = {
   // Native and heavy server packages stay outside the server bundle.
   serverExternalPackages: ["@napi-rs/canvas", "sharp", "pdfjs-dist", "@node-rs/argon2", "bullmq", "ioredis", "mysql2", "formidable"],
   poweredByHeader: false,
+  // forbidden() from next/navigation: a role without access to a page gets a 403 page, not a 200.
+  experimental: { authInterrupts: true },
   // The test runner builds only to drive the browser tests; type checking is `npm run typecheck`'s job there.
   typescript: { ignoreBuildErrors: process.env.TYMPAN_BUILD_SKIP_TYPECHECK === "1" },
 };

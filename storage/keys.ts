@@ -15,6 +15,9 @@ export type CropKind = "artwork" | "scan" | "difference";
 
 export const newObjectId = (): string => randomUUID();
 
+/** The uuid part of "artwork-sources/<uuid>.pdf": rasters and the preview live under the same random id. */
+export const sourceObjectId = (sourceKey: string) => sourceKey.replace(/^.*\//, "").replace(/\.pdf$/, "");
+
 export const keys = {
   artworkSource: (id: string) => `artwork-sources/${id}.pdf`,
   raster: (revisionObjectId: string, dpi: number) => `rasters/${revisionObjectId}/${dpi}.png`,

@@ -8,11 +8,12 @@ import { env } from "@/lib/env";
 import { notFound } from "@/lib/errors";
 import { enqueuePreview, enqueueRasterise } from "@/lib/queue/queues";
 import { receiveUpload } from "@/lib/uploads/receive";
-import { invalidInput } from "@/lib/errors";
+import { AppError, invalidInput } from "@/lib/errors";
 import { parseInput } from "@/lib/validation";
 import type { ExcludedArea } from "@/db/schema";
-import { areaOutOfBounds, excludedAreasInput } from "./excluded-areas";
-import { keys, newObjectId } from "@/storage/keys";
+import { areaOutOfBounds, excludedAreasInput, upsAreaOf } from "./excluded-areas";
+import { keys, newObjectId, sourceObjectId } from "@/storage/keys";
+import { objectExists } from "@/storage/objects";
 import { conflict, loadJobFor } from "./access";
 
 export interface ArtworkUploadResult {
@@ -154,7 +155,7 @@ export async function setExcludedAreas(actor: Actor, revisionId: number, rawInpu
   const job = await loadJobFor(actor, revision.jobId, "artwork.upload");
   if (revision.pageWidthUm > 0 && revision.pageHeightUm > 0) {
     const page = { widthMm: revision.pageWidthUm / 1000, heightMm: revision.pageHeightUm / 1000 };
-    const ups = { rows: revision.upsRows, columns: revision.upsColumns };
+    const ups = { rows: revision.upsRows, columns: revision.upsColumns, areaMm: upsAreaOf(revision) ?? undefined };
     const errors: Record<string, string[]> = {};
     areas.forEach((area, i) => {
       const problem = areaOutOfBounds(area, ups, page);
@@ -177,4 +178,18 @@ export async function setExcludedAreas(actor: Actor, revisionId: number, rawInpu
     });
   });
   return { revisionId: revision.id, areas };
+}
+
+/**
+ * The storage key of a revision's page preview, for whoever may read the job. While the worker is still making
+ * it (or Redis lost the request) it is asked for again and the caller hears "not ready yet".
+ */
+export async function previewKeyFor(actor: Actor, revisionId: number): Promise<string> {
+  const [revision] = await db.select().from(artworkRevisions).where(eq(artworkRevisions.id, revisionId)).limit(1);
+  if (!revision) throw notFound("The artwork revision");
+  await loadJobFor(actor, revision.jobId, "job.read");
+  const key = keys.preview(sourceObjectId(revision.sourceKey));
+  if (await objectExists(key)) return key;
+  await enqueuePreview(revision.id).catch((error) => console.error("Queueing the artwork preview failed:", error));
+  throw new AppError("preview_pending", "The picture of this artwork page is still being made. It appears in a moment.", 404);
 }

@@ -22,6 +22,11 @@ export const excludedAreasInput = z.object({
   areas: z.array(excludedAreaSchema).max(MAX_EXCLUDED_AREAS, { error: `At most ${MAX_EXCLUDED_AREAS} excluded areas.` }),
 });
 
+/** The stored rectangle the ups occupy, in mm; null means the whole page. */
+export function upsAreaOf(r: { upsAreaXUm: number | null; upsAreaYUm: number | null; upsAreaWUm: number | null; upsAreaHUm: number | null }): RectMm | null {
+  return r.upsAreaWUm && r.upsAreaHUm ? { x: (r.upsAreaXUm ?? 0) / 1000, y: (r.upsAreaYUm ?? 0) / 1000, w: r.upsAreaWUm / 1000, h: r.upsAreaHUm / 1000 } : null;
+}
+
 const round3 = (v: number) => Math.round(v * 1000) / 1000;
 
 /** The rectangle one up occupies on the page (row and column from 0). */

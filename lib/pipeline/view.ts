@@ -1,9 +1,10 @@
 // What the job page shows of the pipeline, cut to the fields the page needs. Polled while work is running.
 import { asc, desc, eq, inArray, sql } from "drizzle-orm";
 import { db } from "@/db/client";
-import { artworkRevisions, findings, inspections, scans, toleranceProfiles, users, type ExcludedArea } from "@/db/schema";
+import { artworkRevisions, findings, inspections, scans, toleranceProfiles, users, type ExcludedArea, type RectMm } from "@/db/schema";
 import { can, type Actor } from "@/lib/auth/policy";
 import { loadJobFor } from "./access";
+import { upsAreaOf } from "./excluded-areas";
 
 export interface RevisionView {
   id: number;
@@ -23,6 +24,8 @@ export interface RevisionView {
   supersededAt: string | null;
   upsRows: number;
   upsColumns: number;
+  /** Where the ups sit on the page, mm; null means the whole page. */
+  upsAreaMm: RectMm | null;
   excludedAreas: ExcludedArea[];
 }
 
@@ -166,12 +169,15 @@ export async function getJobPipeline(actor: Actor, jobId: number): Promise<JobPi
       supersededAt: iso(r.supersededAt),
       upsRows: r.upsRows,
       upsColumns: r.upsColumns,
+      upsAreaMm: upsAreaOf(r),
       excludedAreas: r.excludedAreas,
     })),
     profiles,
     sheets,
     busy:
       revisionRows.some((r) => r.rasterStatus === "pending") ||
+      // A draft's page picture and size are being made by the worker.
+      revisionRows.some((r) => r.status === "draft" && r.pageWidthUm === 0) ||
       sheets.some((s) => s.inspection?.status === "queued" || s.inspection?.status === "running"),
   };
 }

@@ -7,12 +7,11 @@ import { MIN_DPI, rasterisePage } from "@/lib/imaging/rasterise";
 import { ImagingError } from "@/lib/imaging/types";
 import { failRaster, loadRevisionWork, savePageSize, saveRaster } from "@/lib/pipeline/records";
 import type { RasteriseData } from "@/lib/queue/queues";
-import { keys } from "@/storage/keys";
+import { keys, sourceObjectId } from "@/storage/keys";
 import { pdfHasScript } from "./pdf-scripts";
 import { getObjectBuffer, objectExists, putObject } from "@/storage/objects";
 
-/** The uuid part of "artwork-sources/<uuid>.pdf": rasters live under the same random id. */
-export const sourceObjectId = (sourceKey: string) => sourceKey.replace(/^.*\//, "").replace(/\.pdf$/, "");
+export { sourceObjectId };
 
 /** Longest side of the page preview people draw excluded areas on, in pixels. */
 export const PREVIEW_MAX_PX = 2000;
