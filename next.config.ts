@@ -27,6 +27,8 @@ const nextConfig: NextConfig = {
       { source: "/_next/static/:path*", headers: noDocument },
     ];
   },
+  // forbidden() from next/navigation: a role without access to a page gets a 403 page, not a 200.
+  experimental: { authInterrupts: true },
   // The test runner builds only to drive the browser tests; type checking is `npm run typecheck`'s job there.
   typescript: { ignoreBuildErrors: process.env.TYMPAN_BUILD_SKIP_TYPECHECK === "1" },
 };

@@ -1,16 +1,26 @@
 // One error shape for users and API clients: a stable code, a plain-words message, an HTTP status.
-// JSON form: {"error":{"code","message"}}.
+// JSON form: {"error":{"code","message"}} (plus "fields" when the input was wrong field by field).
+
+export interface AppErrorDetails {
+  /** Extra response headers, e.g. Retry-After on a 429. */
+  headers?: Record<string, string>;
+  /** Messages per input field, for a form to show beside each field (and an API client to read). */
+  fieldErrors?: Record<string, string[]>;
+}
 
 export class AppError extends Error {
+  readonly headers: Record<string, string>;
+  readonly fieldErrors?: Record<string, string[]>;
   constructor(
     readonly code: string,
     message: string,
     readonly status = 400,
-    /** Extra response headers, e.g. Retry-After on a 429. */
-    readonly headers: Record<string, string> = {},
+    details: AppErrorDetails = {},
   ) {
     super(message);
     this.name = "AppError";
+    this.headers = details.headers ?? {};
+    this.fieldErrors = details.fieldErrors;
   }
 }
 
@@ -20,12 +30,21 @@ export const notFound = (what: string) => new AppError("not_found", `${what} was
 
 export const tooManyAttempts = (seconds: number) =>
   new AppError("too_many_attempts", `Too many failed attempts. Try again in ${Math.ceil(seconds / 60)} minute(s).`, 429, {
-    "Retry-After": String(seconds),
+    headers: { "Retry-After": String(seconds) },
   });
 
-export function errorBody(error: unknown): { status: number; body: { error: { code: string; message: string } } } {
+/** Bad input, named field by field (422). */
+export const invalidInput = (fieldErrors: Record<string, string[]>, message = "Please correct the marked fields.") =>
+  new AppError("invalid_input", message, 422, { fieldErrors });
+
+export interface ErrorBody {
+  error: { code: string; message: string; fields?: Record<string, string[]> };
+}
+
+export function errorBody(error: unknown): { status: number; body: ErrorBody } {
   if (error instanceof AppError) {
-    return { status: error.status, body: { error: { code: error.code, message: error.message } } };
+    const fields = error.fieldErrors ? { fields: error.fieldErrors } : {};
+    return { status: error.status, body: { error: { code: error.code, message: error.message, ...fields } } };
   }
   return {
     status: 500,

@@ -3,6 +3,7 @@ import { SignOutButton } from "@/components/auth/sign-out-button";
 import { ScanCaution } from "@/components/caution";
 import { Logo } from "@/components/logo";
 import { NavLinks, type NavItem } from "@/components/shell/nav-links";
+import { QueryProvider } from "@/components/shell/query-provider";
 import { can, ROLE_LABELS } from "@/lib/auth/policy";
 import { requireActor } from "@/lib/auth/session";
 
@@ -10,7 +11,9 @@ import { requireActor } from "@/lib/auth/session";
 export default async function WorkspaceLayout({ children }: { children: React.ReactNode }) {
   const actor = await requireActor();
   const items: NavItem[] = [{ href: "/", label: "Jobs" }];
+  if (can(actor, "customer.manage")) items.push({ href: "/customers", label: "Customers" });
   if (can(actor, "user.manage")) items.push({ href: "/admin/users", label: "Users" });
+  if (can(actor, "audit.read")) items.push({ href: "/admin/audit", label: "Audit trail" });
   items.push({ href: "/settings/tokens", label: "API tokens" });
   return (
     <div className="flex min-h-screen flex-col">
@@ -29,7 +32,9 @@ export default async function WorkspaceLayout({ children }: { children: React.Re
           </div>
         </div>
       </header>
-      <main className="mx-auto w-full max-w-7xl flex-1 px-4 py-8 sm:px-6">{children}</main>
+      <main className="mx-auto w-full max-w-7xl flex-1 px-4 py-8 sm:px-6">
+        <QueryProvider>{children}</QueryProvider>
+      </main>
       <footer className="border-t border-rule">
         <div className="mx-auto max-w-7xl px-4 py-4 sm:px-6">
           <ScanCaution className="text-xs" />

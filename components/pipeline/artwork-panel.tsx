@@ -1,11 +1,14 @@
 "use client";
-// Artwork revisions of a job: upload a PDF (prepress) with a progress bar, approve a draft.
+// Artwork revisions of a job: upload a PDF (prepress) with a progress bar, draw a draft's excluded areas,
+// approve a draft (which supersedes the revision approved before); the history says who did what, when.
 import { useState } from "react";
 import { Notice } from "@/components/ui/notice";
 import type { JobPipelineView } from "@/lib/pipeline/view";
 import { ProgressBar } from "./progress-bar";
 import { errorMessageOf, postJson, sendForm } from "./send-form";
 import { formatBytes } from "@/lib/format";
+import { LocalTime } from "@/components/ui/local-time";
+import { ExcludedAreasEditor } from "./excluded-areas-editor";
 
 const statusLabel = { draft: "Draft", approved: "Approved", superseded: "Superseded" } as const;
 const rasterLabel = { none: "", pending: "Preparing for comparison…", ready: "Ready for comparison", failed: "Could not be prepared" } as const;
@@ -63,35 +66,62 @@ export function ArtworkPanel({ view, refresh }: { view: JobPipelineView; refresh
       {progress !== null && <ProgressBar fraction={progress} label="Artwork upload" />}
       {notice && <Notice tone={notice.tone}>{notice.text}</Notice>}
       {view.revisions.length === 0 ? (
-        <p className="text-sm text-ink-muted">No artwork yet. Prepress uploads the approved artwork PDF of this job here.</p>
+        <p className="text-sm text-ink-muted">No artwork yet. Prepress uploads the approved artwork PDF of this job here; a new upload later becomes the next revision.</p>
       ) : (
         <ul className="divide-y divide-rule text-sm">
-          {view.revisions.map((r) => (
-            <li key={r.id} className="flex flex-wrap items-center gap-x-4 gap-y-1 py-2">
-              <span className="font-medium">Revision {r.revision}</span>
-              {/* Only the file name gives way on a narrow screen: the page size is what prepress checks. */}
-              <span className="flex min-w-0 flex-1 text-ink-muted">
-                <span className="truncate" title={r.fileName}>
-                  {r.fileName}
+          {view.revisions.map((r, index) => (
+            <li key={r.id} className="space-y-1 py-3">
+              <div className="flex flex-wrap items-center gap-x-4 gap-y-1">
+                <span className="font-medium">Revision {r.revision}</span>
+                {/* Only the file name gives way on a narrow screen: the page size is what prepress checks. */}
+                <span className="flex min-w-0 flex-1 text-ink-muted">
+                  <span className="truncate" title={r.fileName}>
+                    {r.fileName}
+                  </span>
+                  <span className="shrink-0 whitespace-pre">
+                    {` · ${formatBytes(r.bytes)}`}
+                    {r.pageWidthMm && r.pageHeightMm ? ` · ${r.pageWidthMm} × ${r.pageHeightMm} mm` : ""}
+                  </span>
                 </span>
-                <span className="shrink-0 whitespace-pre">
-                  {` · ${formatBytes(r.bytes)}`}
-                  {r.pageWidthMm && r.pageHeightMm ? ` · ${r.pageWidthMm} × ${r.pageHeightMm} mm` : ""}
-                </span>
-              </span>
-              <span className={r.status === "approved" ? "font-medium text-ok" : "text-ink-muted"}>{statusLabel[r.status]}</span>
-              {r.status === "approved" && <span className={r.rasterStatus === "failed" ? "text-danger" : "text-ink-muted"}>{rasterLabel[r.rasterStatus]}</span>}
-              {r.status === "draft" && view.may.approveArtwork && (
-                <button
-                  type="button"
-                  onClick={() => void approve(r.id)}
-                  disabled={approving !== null}
-                  className="rounded-md border border-accent px-2.5 py-1 text-xs font-medium text-accent hover:bg-accent-soft disabled:opacity-50"
-                >
-                  {approving === r.id ? "Approving…" : "Approve"}
-                </button>
-              )}
+                <span className={r.status === "approved" ? "font-medium text-ok" : "text-ink-muted"}>{statusLabel[r.status]}</span>
+                {r.status === "approved" && <span className={r.rasterStatus === "failed" ? "text-danger" : "text-ink-muted"}>{rasterLabel[r.rasterStatus]}</span>}
+                {r.status === "draft" && view.may.approveArtwork && (
+                  <button
+                    type="button"
+                    onClick={() => void approve(r.id)}
+                    disabled={approving !== null}
+                    className="rounded-md border border-accent px-2.5 py-1 text-xs font-medium text-accent hover:bg-accent-soft disabled:opacity-50"
+                  >
+                    {approving === r.id ? "Approving…" : r.excludedAreas.length ? `Approve with ${r.excludedAreas.length} excluded area${r.excludedAreas.length === 1 ? "" : "s"}` : "Approve"}
+                  </button>
+                )}
+              </div>
+              <p className="text-xs text-ink-muted">
+                Uploaded <LocalTime at={r.uploadedAt} />
+                {r.uploadedByName ? ` by ${r.uploadedByName}` : ""}
+                {r.approvedAt && (
+                  <>
+                    {" · approved "}
+                    <LocalTime at={r.approvedAt} />
+                    {r.approvedByName ? ` by ${r.approvedByName}` : ""}
+                  </>
+                )}
+                {r.supersededAt && (
+                  <>
+                    {" · superseded "}
+                    <LocalTime at={r.supersededAt} />
+                  </>
+                )}
+              </p>
               {r.rasterError && <p className="w-full text-danger">{r.rasterError}</p>}
+              <details className="group" open={index === 0}>
+                <summary className="cursor-pointer text-xs font-medium text-accent hover:underline">
+                  Page and excluded areas ({r.excludedAreas.length})
+                </summary>
+                <div className="mt-3">
+                  <ExcludedAreasEditor revision={r} editable={r.status === "draft" && view.may.uploadArtwork} refresh={refresh} />
+                </div>
+              </details>
             </li>
           ))}
         </ul>

@@ -20,7 +20,7 @@ const toneClass = { ok: "text-ok", error: "text-danger", caution: "text-caution"
 
 export function ScanUpload({ view, refresh }: { view: JobPipelineView; refresh: () => void }) {
   const [files, setFiles] = useState<Pending[]>([]);
-  const [profile, setProfile] = useState(view.profiles[0]?.name ?? "");
+  const [profile, setProfile] = useState(view.job.toleranceProfileName ?? view.profiles[0]?.name ?? "");
   const [busy, setBusy] = useState(false);
   const approved = view.revisions.find((r) => r.status === "approved");
   const update = (key: string, patch: Partial<Pending>) => setFiles((all) => all.map((p) => (p.key === key ? { ...p, ...patch } : p)));

@@ -19,7 +19,11 @@ export function Field({
         {label}
       </label>
       {children}
-      {hint && !message && <p className="text-xs text-ink-muted">{hint}</p>}
+      {hint && !message && (
+        <p id={`${name}-hint`} className="text-xs text-ink-muted">
+          {hint}
+        </p>
+      )}
       {message && (
         <p id={`${name}-error`} className="text-xs font-medium text-danger">
           {message}

@@ -52,7 +52,7 @@ export function protectedAction<S extends z.ZodType>(
       if (options.resource) authorize(actor, options.action, await options.resource(parsed.data));
       return (await run(parsed.data, actor)) ?? {};
     } catch (error) {
-      if (error instanceof AppError) return { error: error.message, values: echo(formData) };
+      if (error instanceof AppError) return { error: error.message, fieldErrors: error.fieldErrors, values: echo(formData) };
       throw error;
     }
   };

@@ -36,6 +36,14 @@ export async function saveRaster(
     .where(eq(artworkRevisions.id, revisionId));
 }
 
+/** The page size measured for a draft's preview; the comparison raster, when made, writes its own. */
+export async function savePageSize(revisionId: number, page: { widthMm: number; heightMm: number; box: string; pageCount: number }) {
+  await db
+    .update(artworkRevisions)
+    .set({ pageWidthUm: um(page.widthMm), pageHeightUm: um(page.heightMm), pageBox: page.box, pageCount: page.pageCount })
+    .where(and(eq(artworkRevisions.id, revisionId), ne(artworkRevisions.rasterStatus, "ready")));
+}
+
 export async function failRaster(revisionId: number, message: string) {
   await db.update(artworkRevisions).set({ rasterStatus: "failed", rasterError: message }).where(eq(artworkRevisions.id, revisionId));
 }
@@ -62,7 +70,7 @@ export function profileOf(row: InspectionWork["profile"]): ToleranceProfile {
     minDefectMm: row.minDefectUm / 1000,
     deltaE00Threshold: row.deltaE00Threshold,
     registrationToleranceMm: row.registrationToleranceUm / 1000,
-    excludedAreasMm: row.excludedAreasMm ?? [],
+    excludedAreasMm: [...(row.excludedAreasMm ?? [])],
   };
 }
 

@@ -22,11 +22,11 @@ export interface ScanUploadItem {
   message: string;
 }
 
-/** The tolerance profile an upload asks for by name, else the first one (the strictest shipped). */
-async function chooseProfile(name: string | undefined) {
+/** The tolerance profile an upload asks for by name, else the job's own, else the first one (the strictest shipped). */
+async function chooseProfile(name: string | undefined, jobProfileId: number | null) {
   const rows = await db.select({ id: toleranceProfiles.id, name: toleranceProfiles.name }).from(toleranceProfiles).orderBy(asc(toleranceProfiles.id));
   if (rows.length === 0) throw new AppError("no_profiles", "No tolerance profile is set up yet; ask an administrator.", 409);
-  if (!name) return rows[0];
+  if (!name) return rows.find((r) => r.id === jobProfileId) ?? rows[0];
   const found = rows.find((r) => r.name === name);
   if (!found) throw new AppError("unknown_profile", `There is no tolerance profile named “${name}”.`, 422);
   return found;
@@ -73,7 +73,7 @@ export async function uploadScans(actor: Actor, jobId: number, request: Request)
   try {
     const single = upload.files.length === 1;
     const numbers = upload.files.map((f) => sheetNumberFor(f, upload.fields, single));
-    const profile = await chooseProfile(upload.fields.profile || undefined);
+    const profile = await chooseProfile(upload.fields.profile || undefined, job.toleranceProfileId);
     const declaredDpi = parseDeclaredDpi(upload.fields.dpi);
     const items = await db.transaction(async (tx) => {
       const known = await tx

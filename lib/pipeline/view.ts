@@ -1,9 +1,10 @@
 // What the job page shows of the pipeline, cut to the fields the page needs. Polled while work is running.
 import { asc, desc, eq, inArray, sql } from "drizzle-orm";
 import { db } from "@/db/client";
-import { artworkRevisions, findings, inspections, scans, toleranceProfiles } from "@/db/schema";
+import { artworkRevisions, findings, inspections, scans, toleranceProfiles, users, type ExcludedArea, type RectMm } from "@/db/schema";
 import { can, type Actor } from "@/lib/auth/policy";
 import { loadJobFor } from "./access";
+import { upsAreaOf } from "./excluded-areas";
 
 export interface RevisionView {
   id: number;
@@ -17,7 +18,15 @@ export interface RevisionView {
   pageWidthMm: number | null;
   pageHeightMm: number | null;
   uploadedAt: string;
+  uploadedByName: string | null;
   approvedAt: string | null;
+  approvedByName: string | null;
+  supersededAt: string | null;
+  upsRows: number;
+  upsColumns: number;
+  /** Where the ups sit on the page, mm; null means the whole page. */
+  upsAreaMm: RectMm | null;
+  excludedAreas: ExcludedArea[];
 }
 
 export interface SheetView {
@@ -43,7 +52,17 @@ export interface SheetView {
 }
 
 export interface JobPipelineView {
-  job: { id: number; jobNumber: string; title: string; customerName: string; artworkDpi: number; upsRows: number; upsColumns: number };
+  job: {
+    id: number;
+    jobNumber: string;
+    title: string;
+    customerName: string;
+    artworkDpi: number;
+    upsRows: number;
+    upsColumns: number;
+    /** The job's tolerance profile (by name), the upload's default; null means the plant's default. */
+    toleranceProfileName: string | null;
+  };
   may: { uploadArtwork: boolean; approveArtwork: boolean; uploadScans: boolean; retryInspection: boolean };
   revisions: RevisionView[];
   profiles: { name: string; label: string }[];
@@ -62,6 +81,9 @@ export async function getJobPipeline(actor: Actor, jobId: number): Promise<JobPi
     .from(artworkRevisions)
     .where(eq(artworkRevisions.jobId, job.id))
     .orderBy(desc(artworkRevisions.revision));
+  const personIds = [...new Set(revisionRows.flatMap((r) => [r.uploadedBy, r.approvedBy]).filter((v): v is number => v !== null))];
+  const people = personIds.length ? await db.select({ id: users.id, name: users.name }).from(users).where(inArray(users.id, personIds)) : [];
+  const nameOf = (id: number | null) => people.find((p) => p.id === id)?.name ?? null;
   const scanRows = await db
     .select()
     .from(scans)
@@ -110,7 +132,8 @@ export async function getJobPipeline(actor: Actor, jobId: number): Promise<JobPi
         : null,
     };
   });
-  const profiles = await db.select({ name: toleranceProfiles.name, label: toleranceProfiles.label }).from(toleranceProfiles).orderBy(asc(toleranceProfiles.id));
+  const profileRows = await db.select({ id: toleranceProfiles.id, name: toleranceProfiles.name, label: toleranceProfiles.label }).from(toleranceProfiles).orderBy(asc(toleranceProfiles.id));
+  const profiles = profileRows.map(({ name, label }) => ({ name, label }));
   return {
     job: {
       id: job.id,
@@ -120,6 +143,7 @@ export async function getJobPipeline(actor: Actor, jobId: number): Promise<JobPi
       artworkDpi: job.artworkDpi,
       upsRows: job.upsRows,
       upsColumns: job.upsColumns,
+      toleranceProfileName: profileRows.find((p) => p.id === job.toleranceProfileId)?.name ?? null,
     },
     may: {
       uploadArtwork: can(actor, "artwork.upload", resource),
@@ -139,12 +163,21 @@ export async function getJobPipeline(actor: Actor, jobId: number): Promise<JobPi
       pageWidthMm: r.pageWidthUm ? r.pageWidthUm / 1000 : null,
       pageHeightMm: r.pageHeightUm ? r.pageHeightUm / 1000 : null,
       uploadedAt: r.createdAt.toISOString(),
+      uploadedByName: nameOf(r.uploadedBy),
       approvedAt: iso(r.approvedAt),
+      approvedByName: nameOf(r.approvedBy),
+      supersededAt: iso(r.supersededAt),
+      upsRows: r.upsRows,
+      upsColumns: r.upsColumns,
+      upsAreaMm: upsAreaOf(r),
+      excludedAreas: r.excludedAreas,
     })),
     profiles,
     sheets,
     busy:
       revisionRows.some((r) => r.rasterStatus === "pending") ||
+      // A draft's page picture and size are being made by the worker.
+      revisionRows.some((r) => r.status === "draft" && r.pageWidthUm === 0) ||
       sheets.some((s) => s.inspection?.status === "queued" || s.inspection?.status === "running"),
   };
 }

@@ -9,6 +9,8 @@ export const QUEUE = { rasterise: "rasterise", inspect: "inspect", mail: "mail" 
 
 export interface RasteriseData {
   revisionId: number;
+  /** Only the small preview image of the page (for a draft revision, before any comparison raster exists). */
+  preview?: boolean;
 }
 export interface InspectData {
   inspectionId: number;
@@ -33,6 +35,7 @@ const mailJob: JobsOptions = {
 
 export const jobIds = {
   rasterise: (revisionId: number, dpi: number) => `raster-${revisionId}-${dpi}`,
+  preview: (revisionId: number) => `preview-${revisionId}`,
   inspect: (inspectionId: number) => `inspection-${inspectionId}`,
   mail: (data: MailData, run: number) => `mail-${data.kind}-${data.inspectionId}-${run}`,
 };
@@ -86,6 +89,10 @@ async function ensureJob<T>(queue: Queue<T>, name: string, data: T, jobId: strin
 
 export async function enqueueRasterise(revisionId: number, dpi: number): Promise<void> {
   await ensureJob(queues().rasterise, "rasterise", { revisionId }, jobIds.rasterise(revisionId, dpi));
+}
+
+export async function enqueuePreview(revisionId: number): Promise<void> {
+  await ensureJob(queues().rasterise, "preview", { revisionId, preview: true }, jobIds.preview(revisionId));
 }
 
 export async function enqueueInspection(inspectionId: number): Promise<void> {

@@ -18,6 +18,7 @@ import {
   type InspectionWork,
   type StoredCrops,
 } from "@/lib/pipeline/records";
+import { expandExcludedAreas, upsAreaOf } from "@/lib/pipeline/excluded-areas";
 import { enqueueMail, enqueueRasterise, type InspectData } from "@/lib/queue/queues";
 import { keys, newObjectId } from "@/storage/keys";
 import { deleteUnder, getObjectBuffer, putObject } from "@/storage/objects";
@@ -109,18 +110,15 @@ export default async function inspect(job: SandboxedJob<InspectData>, token?: st
     await progress("align", 8);
 
     const r = work.revision;
+    const ups = { rows: r.upsRows, columns: r.upsColumns, areaMm: upsAreaOf(r) ?? undefined };
+    // The revision's excluded areas (variable data) join the profile's own; "up" areas repeat in every up.
+    const profile = profileOf(work.profile);
+    profile.excludedAreasMm.push(...expandExcludedAreas(r.excludedAreas ?? [], ups, { widthMm: artwork.widthMm, heightMm: artwork.heightMm }));
     const result = await inspectSheet({
       artwork,
       scan,
-      profile: profileOf(work.profile),
-      ups: {
-        rows: r.upsRows,
-        columns: r.upsColumns,
-        areaMm:
-          r.upsAreaWUm && r.upsAreaHUm
-            ? { x: (r.upsAreaXUm ?? 0) / 1000, y: (r.upsAreaYUm ?? 0) / 1000, w: r.upsAreaWUm / 1000, h: r.upsAreaHUm / 1000 }
-            : undefined,
-      },
+      profile,
+      ups,
       crops: true,
       onProgress: (p: InspectionProgress) => void progress(p.stage, 8 + p.percent * 0.82),
     });

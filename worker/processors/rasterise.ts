@@ -3,20 +3,45 @@
 // key, and no extra dependency (Node 20 has no zstd; raw+gzip would be larger and slower to read than PNG).
 import { UnrecoverableError, type SandboxedJob } from "bullmq";
 import sharp from "sharp";
-import { rasterisePage } from "@/lib/imaging/rasterise";
+import { MIN_DPI, rasterisePage } from "@/lib/imaging/rasterise";
 import { ImagingError } from "@/lib/imaging/types";
-import { failRaster, loadRevisionWork, saveRaster } from "@/lib/pipeline/records";
+import { failRaster, loadRevisionWork, savePageSize, saveRaster } from "@/lib/pipeline/records";
 import type { RasteriseData } from "@/lib/queue/queues";
-import { keys } from "@/storage/keys";
+import { keys, sourceObjectId } from "@/storage/keys";
 import { pdfHasScript } from "./pdf-scripts";
 import { getObjectBuffer, objectExists, putObject } from "@/storage/objects";
 
-/** The uuid part of "artwork-sources/<uuid>.pdf": rasters live under the same random id. */
-export const sourceObjectId = (sourceKey: string) => sourceKey.replace(/^.*\//, "").replace(/\.pdf$/, "");
+export { sourceObjectId };
+
+/** Longest side of the page preview people draw excluded areas on, in pixels. */
+export const PREVIEW_MAX_PX = 2000;
+
+const previewOf = (image: ReturnType<typeof sharp>) =>
+  image.resize({ width: PREVIEW_MAX_PX, height: PREVIEW_MAX_PX, fit: "inside", withoutEnlargement: true }).png({ compressionLevel: 6 }).toBuffer();
+
+/** A small picture of page 1 at a low resolution, and the page's size, for a revision not yet approved. */
+async function preview(work: NonNullable<Awaited<ReturnType<typeof loadRevisionWork>>>): Promise<{ key: string }> {
+  const { revision } = work;
+  const key = keys.preview(sourceObjectId(revision.sourceKey));
+  const pdf = new Uint8Array(await getObjectBuffer(revision.sourceKey));
+  if (await pdfHasScript(pdf)) throw new UnrecoverableError("The artwork PDF contains JavaScript; no preview is made.");
+  let page;
+  try {
+    // pdf.js's lowest resolution here; the preview is then scaled to at most PREVIEW_MAX_PX.
+    page = await rasterisePage(pdf, { page: 1, dpi: MIN_DPI });
+  } catch (error) {
+    if (error instanceof ImagingError) throw new UnrecoverableError(error.message);
+    throw error;
+  }
+  await putObject(key, await previewOf(sharp(page.data, { raw: { width: page.width, height: page.height, channels: 4 } })), "image/png");
+  await savePageSize(revision.id, { widthMm: page.widthMm, heightMm: page.heightMm, box: page.box, pageCount: page.pageCount });
+  return { key };
+}
 
 export default async function rasterise(job: SandboxedJob<RasteriseData>): Promise<{ key: string }> {
   const work = await loadRevisionWork(job.data.revisionId);
   if (!work) throw new UnrecoverableError(`Artwork revision ${job.data.revisionId} no longer exists`);
+  if (job.data.preview) return preview(work);
   const { revision, job: printJob } = work;
   const dpi = revision.rasterDpi ?? printJob.artworkDpi;
   const key = keys.raster(sourceObjectId(revision.sourceKey), dpi);
@@ -44,6 +69,7 @@ export default async function rasterise(job: SandboxedJob<RasteriseData>): Promi
     .png({ compressionLevel: 3 })
     .toBuffer();
   await putObject(key, png, "image/png");
+  await putObject(keys.preview(sourceObjectId(revision.sourceKey)), await previewOf(sharp(png)), "image/png");
   await saveRaster(revision.id, {
     key,
     dpi,

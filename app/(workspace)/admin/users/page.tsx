@@ -1,7 +1,7 @@
 import type { Metadata } from "next";
 import { AccountControls, RoleControl } from "@/components/admin/user-row-controls";
 import { InviteForm } from "@/components/admin/invite-form";
-import { Notice } from "@/components/ui/notice";
+import { forbidden } from "next/navigation";
 import { can } from "@/lib/auth/policy";
 import { requireActor } from "@/lib/auth/session";
 import { listCustomers, listUsers } from "@/lib/users/admin";
@@ -24,9 +24,7 @@ function AccountState({ disabled, invited, inviteOpen }: { disabled: boolean; in
 
 export default async function UsersPage() {
   const actor = await requireActor();
-  if (!can(actor, "user.manage")) {
-    return <Notice tone="error">Only administrators manage users.</Notice>;
-  }
+  if (!can(actor, "user.manage")) forbidden();
   const [users, customers] = await Promise.all([listUsers(actor), listCustomers()]);
   return (
     <div className="space-y-6">

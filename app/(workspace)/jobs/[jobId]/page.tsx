@@ -1,6 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
+import { JobDetails } from "@/components/jobs/job-details";
 import { JobPipeline } from "@/components/pipeline/job-pipeline";
 import { requireActor } from "@/lib/auth/session";
 import { AppError } from "@/lib/errors";
@@ -32,9 +33,10 @@ export default async function JobPage(props: { params: Promise<{ jobId: string }
           <span className="font-mono text-lg text-ink-muted">{job.jobNumber}</span> {job.title}
         </h1>
         <p className="mt-1 text-sm text-ink-muted">
-          {job.customerName} · {job.upsRows * job.upsColumns} up{job.upsRows * job.upsColumns === 1 ? "" : "s"} ({job.upsRows} × {job.upsColumns}) · compared at {job.artworkDpi} dpi
+          {job.customerName} · compared at {job.artworkDpi} dpi
         </p>
       </div>
+      <JobDetails jobId={job.id} />
       <JobPipeline initial={view} />
     </div>
   );

@@ -1,0 +1,16 @@
+// GET: what waits for the signed-in person's role now (the home page's first panel).
+import { actorOrThrow } from "@/lib/auth/session";
+import { errorResponse } from "@/lib/errors";
+import { whatNeedsMe } from "@/lib/jobs/attention";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+export async function GET() {
+  try {
+    const actor = await actorOrThrow();
+    return Response.json({ sections: await whatNeedsMe(actor) }, { headers: { "Cache-Control": "no-store" } });
+  } catch (error) {
+    return errorResponse(error);
+  }
+}

@@ -1,0 +1,16 @@
+// GET ?q&sort&dir&page&pageSize: one page of customers (admin, prepress).
+import { actorOrThrow } from "@/lib/auth/session";
+import { listCustomers } from "@/lib/customers/customers";
+import { errorResponse } from "@/lib/errors";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+export async function GET(request: Request) {
+  try {
+    const actor = await actorOrThrow();
+    return Response.json(await listCustomers(actor, Object.fromEntries(new URL(request.url).searchParams)), { headers: { "Cache-Control": "no-store" } });
+  } catch (error) {
+    return errorResponse(error);
+  }
+}
