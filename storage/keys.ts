@@ -7,7 +7,8 @@
 //   rasters/<uuid>/preview.png              a small picture of that page for people (drawing excluded areas)
 //   scans/<uuid>.<tif|png|jpg>              one uploaded press-sheet scan
 //   crops/<inspection uuid>/<uuid>-<artwork|scan|difference>.png   crops around one finding
-//   tiles/…, reports/…                      reserved for zoom tiles and printed reports
+//   tiles/<uuid>/<artwork|scan|difference>.dzi and …_files/<level>/<x>_<y>.<jpeg|png>   deep-zoom pyramids
+//   reports/…                               reserved for printed reports
 import { randomUUID } from "node:crypto";
 
 export type ScanFormat = "tif" | "png" | "jpg";
@@ -26,4 +27,5 @@ export const keys = {
   cropPrefix: (inspectionObjectId: string) => `crops/${inspectionObjectId}/`,
   crop: (inspectionObjectId: string, findingObjectId: string, kind: CropKind) =>
     `crops/${inspectionObjectId}/${findingObjectId}-${kind}.png`,
+  tilesPrefix: (id: string) => `tiles/${id}/`,
 };

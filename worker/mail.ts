@@ -3,7 +3,8 @@
 import type { Job } from "bullmq";
 import { env } from "@/lib/env";
 import { mailTransport } from "@/lib/mail/transport";
-import { sheetFailedMessage, sheetReadyMessage, type SheetMailContext } from "@/lib/mail/messages";
+import { sheetFailedMessage, sheetReadyMessage, sheetSignedMessage, type SheetMailContext } from "@/lib/mail/messages";
+import { signedMail } from "@/lib/review/signed-mail";
 import { countFindings, loadInspectionWork, usersWithRoles } from "@/lib/pipeline/records";
 import type { MailData } from "@/lib/queue/queues";
 
@@ -23,7 +24,12 @@ export async function sendPipelineMail(job: Job<MailData>): Promise<{ sent: numb
   };
   let message;
   let recipients;
-  if (data.kind === "sheet_ready") {
+  if (data.kind === "sheet_signed") {
+    const signed = await signedMail(context, data.signoffId, work.job.customerId);
+    if (!signed) return { sent: 0 };
+    message = sheetSignedMessage(signed.context);
+    recipients = signed.recipients;
+  } else if (data.kind === "sheet_ready") {
     context.findingsCount = await countFindings(work.inspection.id);
     message = sheetReadyMessage(context);
     // There is no per-customer reviewer assignment yet: every active reviewer is told.

@@ -1,6 +1,7 @@
 "use client";
 // The press run: one row per scanned sheet with the live stage of its inspection, its findings, and for a
 // failure the reason in plain words with a Retry button (QA, admin).
+import Link from "next/link";
 import { Fragment, useState } from "react";
 import type { JobPipelineView, SheetView } from "@/lib/pipeline/view";
 import { FindingsList } from "./findings-list";
@@ -80,6 +81,11 @@ export function SheetsTable({ view, refresh }: { view: JobPipelineView; refresh:
                       </td>
                       <td className="px-2 py-2 text-right tabular-nums">{i?.status === "done" ? i.findingsCount : ""}</td>
                       <td className="whitespace-nowrap px-2 py-2 text-right">
+                        {i?.status === "done" && (
+                          <Link href={`/jobs/${view.job.id}/sheets/${i.id}`} className="mr-3 font-medium text-accent hover:underline">
+                            Open sheet
+                          </Link>
+                        )}
                         {i?.status === "done" && (
                           <button type="button" onClick={() => setOpen(open === i.id ? null : i.id)} className="text-accent hover:underline" aria-expanded={open === i.id}>
                             {open === i.id ? "Hide findings" : "Show findings"}

@@ -63,3 +63,31 @@ export function sheetFailedMessage(c: SheetMailContext, reason: "inspection_fail
     ].join("\n"),
   };
 }
+
+export interface SignedMailContext extends SheetMailContext {
+  verdict: "passed" | "failed";
+  meaning: string;
+  signerName: string;
+  signerRole: string;
+  signedAtUtc: string;
+  rejectedCount: number;
+  recordSha256: string;
+}
+
+export function sheetSignedMessage(c: SignedMailContext): Message {
+  const name = sheetName(c);
+  return {
+    subject: `Sheet ${c.verdict}: ${c.jobNumber}, ${name}`,
+    text: [
+      `${name[0].toUpperCase()}${name.slice(1)} of job ${c.jobNumber} (${c.jobTitle}, ${c.customerName}) was signed off as ${c.verdict.toUpperCase()}.`,
+      "",
+      `Signed by ${c.signerName} (${c.signerRole}) as “${c.meaning}” at ${c.signedAtUtc} UTC.`,
+      `${c.findingsCount} finding${c.findingsCount === 1 ? "" : "s"} decided, ${c.rejectedCount} rejected as defects.`,
+      `Record fingerprint (sha256): ${c.recordSha256}`,
+      "",
+      `Open the sheet: ${new URL(`/jobs/${c.jobId}/sheets/${c.inspectionId}`, env.APP_URL).toString()}`,
+      "",
+      caution,
+    ].join("\n"),
+  };
+}

@@ -17,7 +17,8 @@ export interface InspectData {
 }
 export type MailData =
   | { kind: "sheet_ready"; inspectionId: number }
-  | { kind: "sheet_failed"; inspectionId: number; reason: "inspection_failed" | "verdict_failed" };
+  | { kind: "sheet_failed"; inspectionId: number; reason: "inspection_failed" | "verdict_failed" }
+  | { kind: "sheet_signed"; inspectionId: number; signoffId: number };
 
 const cpuJob: JobsOptions = {
   attempts: 3,

@@ -22,6 +22,7 @@ import { expandExcludedAreas, upsAreaOf } from "@/lib/pipeline/excluded-areas";
 import { enqueueMail, enqueueRasterise, type InspectData } from "@/lib/queue/queues";
 import { keys, newObjectId } from "@/storage/keys";
 import { deleteUnder, getObjectBuffer, putObject } from "@/storage/objects";
+import { buildTiles } from "./tiles";
 
 const RASTER_WAIT_MS = 3000;
 
@@ -150,7 +151,9 @@ export default async function inspect(job: SandboxedJob<InspectData>, token?: st
     const keep = new Set(crops.flatMap((c) => (c ? [c.artwork, c.scan, c.difference] : [])));
     await deleteUnder(prefix, keep).catch(() => undefined);
     await enqueueMail({ kind: "sheet_ready", inspectionId: id }, run);
-    return { inspectionId: id, findings: result.findings.length, timingsMs: result.timingsMs };
+    // The viewer's tiles come after the result is safe: a failure there marks the tiles, not the inspection.
+    const tiles = await buildTiles(id, { artwork, scan, alignment: result.alignment });
+    return { inspectionId: id, findings: result.findings.length, tiles: tiles?.files ?? null, timingsMs: result.timingsMs };
   } catch (error) {
     if (error instanceof ImagingError) {
       // Bad input (unreadable file, wrong artwork, oversize scan): trying again cannot help.

@@ -1,0 +1,47 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { SheetWorkspace } from "@/components/review/sheet-workspace";
+import { requireActor } from "@/lib/auth/session";
+import { AppError } from "@/lib/errors";
+import { getSheetView, type SheetView } from "@/lib/review/sheet";
+
+export const metadata: Metadata = { title: "Sheet" };
+export const dynamic = "force-dynamic";
+
+const verdictStyle = { pending: "bg-caution-soft text-caution", passed: "bg-ok-soft text-ok", failed: "bg-danger-soft text-danger" } as const;
+const verdictText = { pending: "Awaiting sign-off", passed: "Signed: passed", failed: "Signed: failed" } as const;
+
+export default async function SheetPage(props: { params: Promise<{ jobId: string; inspectionId: string }> }) {
+  const params = await props.params;
+  const actor = await requireActor();
+  const inspectionId = Number(params.inspectionId);
+  if (!Number.isSafeInteger(inspectionId) || inspectionId <= 0) notFound();
+  let view: SheetView;
+  try {
+    view = await getSheetView(actor, inspectionId);
+  } catch (error) {
+    if (error instanceof AppError && (error.status === 404 || error.status === 403)) notFound();
+    throw error;
+  }
+  if (String(view.job.id) !== params.jobId) notFound();
+  return (
+    <div className="space-y-4">
+      <div>
+        <Link href={`/jobs/${view.job.id}`} className="text-sm text-accent hover:underline">
+          ← <span className="font-mono">{view.job.jobNumber}</span> {view.job.title}
+        </Link>
+        <div className="mt-2 flex flex-wrap items-center gap-3">
+          <h1 className="text-2xl font-semibold tracking-tight">Sheet {view.sheetNumber ?? "without number"}</h1>
+          <span className={`rounded-md px-2 py-0.5 text-sm font-medium ${verdictStyle[view.verdict]}`}>{verdictText[view.verdict]}</span>
+        </div>
+        <p className="mt-1 text-sm text-ink-muted">
+          {view.job.customerName} · artwork revision {view.artworkRevision} · {view.scanFileName}
+          {view.alignment.rotationDeg !== null && ` · turned ${view.alignment.rotationDeg.toFixed(2)}°, fit ±${(view.alignment.residualMm ?? 0).toFixed(2)} mm`}
+          {view.alignment.driftDeltaE00 !== null && ` · overall drift ΔE00 ${view.alignment.driftDeltaE00.toFixed(1)}`}
+        </p>
+      </div>
+      <SheetWorkspace initial={view} />
+    </div>
+  );
+}

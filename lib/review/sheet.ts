@@ -1,0 +1,131 @@
+// What the sheet page shows: the sheet's geometry (page, ups, covered area), its tile layers, every finding with
+// its decision and the version a decision must name, the signatures, and what the actor may do. Cut to the
+// fields the page needs; customer users get the same read-only view of their own sheets.
+import { desc, eq, inArray } from "drizzle-orm";
+import { db } from "@/db/client";
+import { findings, inspections, scans, users } from "@/db/schema";
+import { can, type Actor } from "@/lib/auth/policy";
+import type { FindingKind } from "@/lib/imaging/types";
+import type { Decision, DecisionReason } from "./decisions";
+import { loadSheetFor } from "./load";
+import { listSignatures, type SignatureView } from "./signoff";
+
+export interface SheetFinding {
+  id: number;
+  /** 1-based number shown on the box and in the list (largest first). */
+  number: number;
+  kind: FindingKind;
+  xMm: number;
+  yMm: number;
+  wMm: number;
+  hMm: number;
+  areaMm2: number;
+  deltaE00Mean: number;
+  deltaE00Max: number;
+  up: number | null;
+  decision: "pending" | Decision;
+  reason: DecisionReason | null;
+  comment: string | null;
+  decidedBy: string | null;
+  decidedAt: string | null;
+  version: number;
+  crops: { artwork: string; scan: string; difference: string } | null;
+}
+
+export interface SheetView {
+  inspectionId: number;
+  job: { id: number; jobNumber: string; title: string; customerName: string };
+  sheetNumber: number | null;
+  scanFileName: string;
+  artworkRevision: number;
+  status: "queued" | "running" | "done" | "failed";
+  verdict: "pending" | "passed" | "failed";
+  finishedAt: string | null;
+  page: { widthMm: number; heightMm: number };
+  ups: { rows: number; columns: number; areaMm: { x: number; y: number; w: number; h: number } };
+  coveredMm: { x: number; y: number; w: number; h: number } | null;
+  alignment: { rotationDeg: number | null; residualMm: number | null; correlation: number | null; driftDeltaE00: number | null };
+  tiles: { status: "none" | "pending" | "ready" | "failed"; artwork: string; scan: string; difference: string } | null;
+  findings: SheetFinding[];
+  signatures: SignatureView[];
+  /** Other sheets of the job, for moving between them. */
+  siblings: { inspectionId: number; sheetNumber: number | null }[];
+  may: { decide: boolean; signoff: boolean; reopen: boolean };
+}
+
+const mm = (um: number | null) => (um === null ? null : um / 1000);
+
+export async function getSheetView(actor: Actor, inspectionId: number): Promise<SheetView> {
+  const { inspection: i, scan, revision: r, job, customerName } = await loadSheetFor(actor, inspectionId, "inspection.read");
+  const resource = { customerId: job.customerId };
+  const rows = await db.select().from(findings).where(eq(findings.inspectionId, i.id));
+  const deciderIds = [...new Set(rows.flatMap((f) => (f.decidedBy ? [f.decidedBy] : [])))];
+  const names = new Map(
+    deciderIds.length ? (await db.select({ id: users.id, name: users.name }).from(users).where(inArray(users.id, deciderIds))).map((u) => [u.id, u.name]) : [],
+  );
+  const base = `/api/inspections/${i.id}`;
+  const sorted = rows.sort((a, b) => b.areaUm2 - a.areaUm2 || a.id - b.id);
+  const siblings = await db
+    .select({ inspectionId: inspections.id, sheetNumber: scans.sheetNumber })
+    .from(inspections)
+    .innerJoin(scans, eq(scans.id, inspections.scanId))
+    .where(eq(scans.jobId, job.id))
+    .orderBy(desc(inspections.id));
+  const open = i.verdict === "pending" && i.status === "done";
+  const pageW = r.pageWidthUm / 1000, pageH = r.pageHeightUm / 1000;
+  return {
+    inspectionId: i.id,
+    job: { id: job.id, jobNumber: job.jobNumber, title: job.title, customerName },
+    sheetNumber: scan.sheetNumber,
+    scanFileName: scan.originalFilename,
+    artworkRevision: r.revision,
+    status: i.status,
+    verdict: i.verdict,
+    finishedAt: i.finishedAt?.toISOString() ?? null,
+    page: { widthMm: pageW, heightMm: pageH },
+    ups: {
+      rows: r.upsRows,
+      columns: r.upsColumns,
+      areaMm:
+        r.upsAreaWUm && r.upsAreaHUm
+          ? { x: (r.upsAreaXUm ?? 0) / 1000, y: (r.upsAreaYUm ?? 0) / 1000, w: r.upsAreaWUm / 1000, h: r.upsAreaHUm / 1000 }
+          : { x: 0, y: 0, w: pageW, h: pageH },
+    },
+    coveredMm:
+      i.coveredWUm && i.coveredHUm ? { x: mm(i.coveredXUm) ?? 0, y: mm(i.coveredYUm) ?? 0, w: i.coveredWUm / 1000, h: i.coveredHUm / 1000 } : null,
+    alignment: { rotationDeg: i.rotationDeg, residualMm: mm(i.residualUm), correlation: i.correlation, driftDeltaE00: i.driftDeltaE00 },
+    tiles:
+      i.tilesStatus === "none"
+        ? null
+        : { status: i.tilesStatus, artwork: `${base}/tiles/artwork.dzi`, scan: `${base}/tiles/scan.dzi`, difference: `${base}/tiles/difference.dzi` },
+    findings: sorted.map((f, n) => ({
+      id: f.id,
+      number: n + 1,
+      kind: f.kind,
+      xMm: f.xUm / 1000,
+      yMm: f.yUm / 1000,
+      wMm: f.wUm / 1000,
+      hMm: f.hUm / 1000,
+      areaMm2: f.areaUm2 / 1e6,
+      deltaE00Mean: f.deltaE00Mean,
+      deltaE00Max: f.deltaE00Max,
+      up: f.upIndex,
+      decision: f.decision,
+      reason: f.decisionReason,
+      comment: f.comment,
+      decidedBy: f.decidedBy ? (names.get(f.decidedBy) ?? null) : null,
+      decidedAt: f.decidedAt?.toISOString() ?? null,
+      version: f.version,
+      crops: f.cropScanKey
+        ? { artwork: `${base}/findings/${f.id}/crops/artwork`, scan: `${base}/findings/${f.id}/crops/scan`, difference: `${base}/findings/${f.id}/crops/difference` }
+        : null,
+    })),
+    signatures: await listSignatures(actor, i.id),
+    siblings,
+    may: {
+      decide: open && can(actor, "finding.decide", resource),
+      signoff: open && can(actor, "sheet.signoff", resource),
+      reopen: i.verdict !== "pending" && can(actor, "sheet.reopen", resource),
+    },
+  };
+}
