@@ -15,7 +15,7 @@ import { alignedScan, buildTiles, differenceImage } from "@/worker/processors/ti
 import { makeSheet, type Sheet } from "./support";
 
 let actor: Actor;
-vi.mock("@/lib/auth/session", () => ({ actorOrThrow: async () => actor }));
+vi.mock("@/lib/auth/request-actor", () => ({ requestActor: async () => actor }));
 const { GET } = await import("@/app/api/inspections/[inspectionId]/tiles/[...path]/route");
 
 const W = 600, H = 360;

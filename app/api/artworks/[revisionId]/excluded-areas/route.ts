@@ -1,5 +1,5 @@
 // PUT {"areas": [{scope, label, x, y, w, h}]} (mm): replaces a draft revision's excluded areas (prepress).
-import { actorOrThrow } from "@/lib/auth/session";
+import { requestActor } from "@/lib/auth/request-actor";
 import { AppError, errorResponse } from "@/lib/errors";
 import { parseId } from "@/lib/pipeline/access";
 import { setExcludedAreas } from "@/lib/pipeline/artworks";
@@ -8,7 +8,7 @@ export const runtime = "nodejs";
 
 export async function PUT(request: Request, ctx: { params: Promise<{ revisionId: string }> }) {
   try {
-    const actor = await actorOrThrow();
+    const actor = await requestActor(request);
     const body = await request.json().catch(() => {
       throw new AppError("bad_json", "The request body must be JSON: {\"areas\": [...]}.", 400);
     });

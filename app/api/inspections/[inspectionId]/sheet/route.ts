@@ -1,5 +1,5 @@
 // GET: everything the sheet page shows (geometry, tiles, findings with decisions, signatures, what the reader may do).
-import { actorOrThrow } from "@/lib/auth/session";
+import { requestActor } from "@/lib/auth/request-actor";
 import { errorResponse } from "@/lib/errors";
 import { parseId } from "@/lib/pipeline/access";
 import { getSheetView } from "@/lib/review/sheet";
@@ -7,9 +7,9 @@ import { getSheetView } from "@/lib/review/sheet";
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-export async function GET(_request: Request, ctx: { params: Promise<{ inspectionId: string }> }) {
+export async function GET(request: Request, ctx: { params: Promise<{ inspectionId: string }> }) {
   try {
-    const actor = await actorOrThrow();
+    const actor = await requestActor(request);
     const view = await getSheetView(actor, parseId((await ctx.params).inspectionId, "The sheet"));
     return Response.json(view, { headers: { "Cache-Control": "no-store" } });
   } catch (error) {

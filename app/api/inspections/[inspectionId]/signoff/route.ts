@@ -1,5 +1,5 @@
 // POST: sign the sheet off (passed or failed) with the password re-entered and the signature's meaning.
-import { actorOrThrow } from "@/lib/auth/session";
+import { requestActor } from "@/lib/auth/request-actor";
 import { errorResponse } from "@/lib/errors";
 import { parseId } from "@/lib/pipeline/access";
 import { readBody, signBody } from "@/lib/review/inputs";
@@ -9,7 +9,7 @@ export const runtime = "nodejs";
 
 export async function POST(request: Request, ctx: { params: Promise<{ inspectionId: string }> }) {
   try {
-    const actor = await actorOrThrow();
+    const actor = await requestActor(request);
     const body = await readBody(request, signBody);
     return Response.json(await signSheet(actor, { inspectionId: parseId((await ctx.params).inspectionId, "The sheet"), ...body }));
   } catch (error) {

@@ -1,6 +1,6 @@
 // GET ?kind&personId&page&pageSize: one page of the job's audit trail, newest first.
 import { listJobAudit } from "@/lib/audit-trail";
-import { actorOrThrow } from "@/lib/auth/session";
+import { requestActor } from "@/lib/auth/request-actor";
 import { errorResponse } from "@/lib/errors";
 import { parseId } from "@/lib/pipeline/access";
 
@@ -9,7 +9,7 @@ export const dynamic = "force-dynamic";
 
 export async function GET(request: Request, ctx: { params: Promise<{ jobId: string }> }) {
   try {
-    const actor = await actorOrThrow();
+    const actor = await requestActor(request);
     const query = Object.fromEntries(new URL(request.url).searchParams);
     return Response.json(await listJobAudit(actor, parseId((await ctx.params).jobId, "The job"), query), { headers: { "Cache-Control": "no-store" } });
   } catch (error) {

@@ -1,5 +1,5 @@
 // POST {"status": "on_press" | "completed" | "cancelled"}: moves the job along an allowed transition.
-import { actorOrThrow } from "@/lib/auth/session";
+import { requestActor } from "@/lib/auth/request-actor";
 import { AppError, errorResponse } from "@/lib/errors";
 import { changeJobStatus } from "@/lib/jobs/jobs";
 import { parseId } from "@/lib/pipeline/access";
@@ -8,7 +8,7 @@ export const runtime = "nodejs";
 
 export async function POST(request: Request, ctx: { params: Promise<{ jobId: string }> }) {
   try {
-    const actor = await actorOrThrow();
+    const actor = await requestActor(request);
     const body = await request.json().catch(() => {
       throw new AppError("bad_json", "The request body must be JSON, e.g. {\"status\":\"on_press\"}.", 400);
     });

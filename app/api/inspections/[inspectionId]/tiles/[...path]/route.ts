@@ -1,7 +1,7 @@
 // GET: one file of a sheet's deep-zoom pyramids (the .dzi description or a tile), streamed from storage after the
 // policy check, so the bucket stays private. Tiles of one run never change (a new run gets a new prefix).
 import { Readable } from "node:stream";
-import { actorOrThrow } from "@/lib/auth/session";
+import { requestActor } from "@/lib/auth/request-actor";
 import { errorResponse, notFound } from "@/lib/errors";
 import { parseId } from "@/lib/pipeline/access";
 import { tileKeyFor } from "@/lib/review/tiles";
@@ -9,9 +9,9 @@ import { getObjectStream } from "@/storage/objects";
 
 export const runtime = "nodejs";
 
-export async function GET(_request: Request, ctx: { params: Promise<{ inspectionId: string; path: string[] }> }) {
+export async function GET(request: Request, ctx: { params: Promise<{ inspectionId: string; path: string[] }> }) {
   try {
-    const actor = await actorOrThrow();
+    const actor = await requestActor(request);
     const params = await ctx.params;
     const { key, contentType } = await tileKeyFor(actor, parseId(params.inspectionId, "The sheet"), params.path.join("/"));
     const stream = await getObjectStream(key).catch((error) => {

@@ -1,5 +1,5 @@
 // POST: accept or reject a finding, naming the version seen. DELETE: undo the decision (until sign-off).
-import { actorOrThrow } from "@/lib/auth/session";
+import { requestActor } from "@/lib/auth/request-actor";
 import { parseId } from "@/lib/pipeline/access";
 import { decideFinding, undoDecision } from "@/lib/review/decisions";
 import { reviewErrorResponse } from "@/lib/review/http";
@@ -15,7 +15,7 @@ async function ids(ctx: Ctx) {
 
 export async function POST(request: Request, ctx: Ctx) {
   try {
-    const actor = await actorOrThrow();
+    const actor = await requestActor(request);
     const body = await readBody(request, decideBody);
     return Response.json(await decideFinding(actor, { ...(await ids(ctx)), ...body }));
   } catch (error) {
@@ -25,7 +25,7 @@ export async function POST(request: Request, ctx: Ctx) {
 
 export async function DELETE(request: Request, ctx: Ctx) {
   try {
-    const actor = await actorOrThrow();
+    const actor = await requestActor(request);
     const body = await readBody(request, undoBody);
     return Response.json(await undoDecision(actor, { ...(await ids(ctx)), ...body }));
   } catch (error) {
