@@ -21,9 +21,8 @@ load_dotenv() {
 ensure_node_modules() {
   if [[ ! -d "$ROOT/node_modules/next" ]]; then
     echo "Installing npm dependencies…"
-    # npm install, not npm ci: npm ci refuses this lock because it lacks entries for odiff-bin's optional
-    # packages of other platforms, which the registry does not have; npm install keeps the locked versions.
-    (cd "$ROOT" && npm install --no-audit --no-fund)
+    # npm ci: exactly the locked versions. (The benchmark's peer odiff-bin is installed by npm run bench.)
+    (cd "$ROOT" && npm ci --no-audit --no-fund)
   fi
 }
 

@@ -191,7 +191,7 @@ start_mail() {
   start_node_service maildev "$SMTP_PORT" node node_modules/maildev/dist/bin/maildev.js \
     --ip 127.0.0.1 --web-ip 127.0.0.1 -s "$SMTP_PORT" -w "$MAILDEV_WEB_PORT" --mail-directory "$DATA_DIR/mail" --silent
   wait_until "maildev web" 30 port_open "$MAILDEV_WEB_PORT"
-  echo "Mail fake smtp://127.0.0.1:$SMTP_PORT  inbox http://127.0.0.1:$MAILDEV_WEB_PORT"
+  echo "Mail fake smtp://127.0.0.1:$SMTP_PORT  inbox http://127.0.0.1:$MAILDEV_WEB_PORT/index.html"
 }
 
 status_line() { # name, pidfile, port

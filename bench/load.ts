@@ -1,0 +1,127 @@
+// `npm run bench:load`: the API under load on loopback against the production build. 50 concurrent clients for
+// 30 s on each of: a findings list, a job page's data, and a finding decision (a new finding every request, so
+// none is a stale-version 409). Writes its own section of bench/RESULTS.md (between the markers), leaving the
+// engine's sections alone. Target: p95 < 100 ms on a 2-core machine, no errors (non-2xx count as errors).
+// Expects the services and a migrated database in the environment (bench/load.sh sets them up).
+import { spawn } from "node:child_process";
+import { readFileSync, writeFileSync } from "node:fs";
+import os from "node:os";
+import autocannon from "autocannon";
+import { closeDb, db } from "../db/client";
+import { findings } from "../db/schema";
+import { createApiToken } from "../lib/auth/tokens";
+import { makePlant } from "../tests/api/support";
+
+const PORT = Number(process.env.BENCH_PORT ?? 3690);
+const BASE = `http://127.0.0.1:${PORT}`;
+const CONNECTIONS = 50;
+const DURATION_S = Number(process.env.BENCH_SECONDS ?? 30);
+const MARK_START = "<!-- api-load:start -->";
+const MARK_END = "<!-- api-load:end -->";
+
+async function waitForApp() {
+  for (let i = 0; i < 300; i++) {
+    try {
+      await fetch(`${BASE}/api/v1/openapi.json`);
+      return;
+    } catch {
+      await new Promise((r) => setTimeout(r, 200));
+    }
+  }
+  throw new Error("The app did not start");
+}
+
+async function main() {
+  const plant = await makePlant();
+  // Findings for the decision run: one per request is plenty at a few thousand requests a second.
+  const extra = 60_000;
+  for (let i = 0; i < extra; i += 2000) {
+    const rows = Array.from({ length: Math.min(2000, extra - i) }, (_, k) => ({
+      inspectionId: plant.b.inspectionId,
+      xUm: (i + k) % 400_000,
+      yUm: 1000,
+      wUm: 500,
+      hUm: 500,
+      areaUm2: 250_000,
+      deltaE00Mean: 4,
+      deltaE00Max: 6,
+      kind: "colour_shift" as const,
+    }));
+    await db.insert(findings).values(rows);
+  }
+  const ids = (await db.select({ id: findings.id }).from(findings)).map((r) => r.id).filter((id) => id > plant.b.findingId);
+  // 40 findings on the listed inspection, as a busy sheet might have.
+  await db.insert(findings).values(
+    Array.from({ length: 40 }, (_, k) => ({ inspectionId: plant.a.inspectionId, xUm: k * 5000, yUm: 2000, wUm: 800, hUm: 600, areaUm2: 480_000 + k, deltaE00Mean: 5, deltaE00Max: 9, kind: "extra_ink" as const })),
+  );
+  const reader = (await createApiToken(null, plant.actors.qa.id, "load")).token;
+  const reviewer = (await createApiToken(null, plant.actors.reviewer.id, "load")).token;
+
+  const app = spawn(process.execPath, ["node_modules/next/dist/bin/next", "start", "-H", "127.0.0.1", "-p", String(PORT)], {
+    env: { ...process.env, NODE_ENV: "production" },
+    stdio: ["ignore", "ignore", "inherit"],
+  });
+  try {
+    await waitForApp();
+    const auth = (t: string) => ({ authorization: `Bearer ${t}` });
+    let next = 0;
+    const runs = [
+      { name: "Findings list (40 findings)", path: `/api/v1/inspections/${plant.a.inspectionId}/findings?limit=100`, headers: auth(reader) },
+      { name: "Job page's data", path: `/api/v1/jobs/${plant.a.jobId}`, headers: auth(reader) },
+      {
+        name: "Finding decision",
+        method: "POST" as const,
+        path: "/",
+        headers: { ...auth(reviewer), "content-type": "application/json" },
+        setupRequest: (req: { path: string; body?: string }) => {
+          const id = ids[next++ % ids.length];
+          req.path = `/api/v1/inspections/${plant.b.inspectionId}/findings/${id}/decision`;
+          req.body = JSON.stringify({ decision: "rejected", reason: "no_defect", version: 0 });
+          return req;
+        },
+      },
+    ];
+    // Warm the routes so the first compiled-on-demand request is not measured.
+    for (const r of runs.slice(0, 2)) await autocannon({ url: BASE + r.path, headers: r.headers, connections: 5, duration: 2 });
+    const rows: string[] = [];
+    for (const r of runs) {
+      const result = await autocannon({
+        url: BASE,
+        connections: CONNECTIONS,
+        duration: DURATION_S,
+        requests: [{ method: r.method ?? "GET", path: r.path, headers: r.headers, ...(r.setupRequest ? { setupRequest: r.setupRequest } : {}) }] as never,
+      });
+      const errors = result.errors + result.timeouts + result.non2xx;
+      const p95 = (result.latency as unknown as Record<string, number>).p95 ?? result.latency.p97_5;
+      rows.push(
+        `| ${r.name} | ${result.latency.p50} | ${p95} | ${result.latency.p99} | ${Math.round(result.requests.average)} | ${result.requests.total} | ${errors} | ${p95 < 100 && errors === 0 ? "met" : "missed"} |`,
+      );
+      console.log(rows.at(-1));
+    }
+    const section = [
+      MARK_START,
+      "## API under load: 50 concurrent clients, 30 s each, production build on loopback",
+      "",
+      `Measured ${new Date().toISOString()} on ${os.cpus().length} cores (${os.cpus()[0]?.model ?? "unknown CPU"}), Node ${process.version}, the app in one process,`,
+      "MariaDB, Redis and the S3 fake on the same machine; autocannon 9 (`npm run bench:load`). Bearer tokens; latency in ms.",
+      "Target: p95 < 100 ms and no errors (errors = connection errors, timeouts and non-2xx answers).",
+      "",
+      "| request | p50 | p95 | p99 | requests/s | total | errors | target |",
+      "|---|---|---|---|---|---|---|---|",
+      ...rows,
+      MARK_END,
+    ].join("\n");
+    const file = "bench/RESULTS.md";
+    const current = readFileSync(file, "utf8");
+    const start = current.indexOf(MARK_START);
+    const end = current.indexOf(MARK_END);
+    const updated = start >= 0 && end > start ? current.slice(0, start) + section + current.slice(end + MARK_END.length) : `${current.trimEnd()}\n\n${section}\n`;
+    writeFileSync(file, updated);
+  } finally {
+    app.kill("SIGTERM");
+    await closeDb();
+  }
+}
+
+await main();
+process.exit(0);
