@@ -9,7 +9,8 @@ import { AppError, notFound } from "@/lib/errors";
 export type JobWithCustomer = Job & { customerName: string };
 
 export function parseId(value: string | undefined, what: string): number {
-  const id = Number(value);
+  // Digits only: Number() would also read "0x10", "1e3" or " 7 " as ids.
+  const id = /^\d{1,15}$/.test(value ?? "") ? Number(value) : NaN;
   if (!Number.isSafeInteger(id) || id <= 0) throw notFound(what);
   return id;
 }
