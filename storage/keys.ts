@@ -4,6 +4,7 @@
 //
 //   artwork-sources/<uuid>.pdf              the uploaded artwork PDF of one revision
 //   rasters/<uuid>/<dpi>.png                the rasterised artwork page of one revision at one resolution
+//   prepared/<uuid>/<dpi>/<windows>.bin     the artwork's side of the comparison prepared for one set of windows
 //   scans/<uuid>.<tif|png|jpg>              one uploaded press-sheet scan
 //   crops/<inspection uuid>/<uuid>-<artwork|scan|difference>.png   crops around one finding
 //   tiles/…, reports/…                      reserved for zoom tiles and printed reports
@@ -14,9 +15,13 @@ export type CropKind = "artwork" | "scan" | "difference";
 
 export const newObjectId = (): string => randomUUID();
 
+/** The uuid part of "artwork-sources/<uuid>.pdf": rasters and preparations live under the same random id. */
+export const sourceObjectId = (sourceKey: string) => sourceKey.replace(/^.*\//, "").replace(/\.pdf$/, "");
+
 export const keys = {
   artworkSource: (id: string) => `artwork-sources/${id}.pdf`,
   raster: (revisionObjectId: string, dpi: number) => `rasters/${revisionObjectId}/${dpi}.png`,
+  prepared: (revisionObjectId: string, dpi: number, windows: string) => `prepared/${revisionObjectId}/${dpi}/${windows}.bin`,
   scan: (id: string, format: ScanFormat) => `scans/${id}.${format}`,
   cropPrefix: (inspectionObjectId: string) => `crops/${inspectionObjectId}/`,
   crop: (inspectionObjectId: string, findingObjectId: string, kind: CropKind) =>

@@ -6,7 +6,7 @@ import { alignedScanSource, borrowScratch, haloPx, processRect, returnScratch, t
 import { makeCrops } from "./crops";
 import { RegionCollector, regionsToFindings } from "./findings";
 import { fitNormalisation, lowPassSigmaPx } from "./normalise";
-import { estimateOpticalBlur, suggestBlurStep } from "./optics";
+import { estimateOpticalBlur, OPTICAL_BLUR_STEPS_PX, suggestBlurStep } from "./optics";
 import { CACHE_MAX_PIXELS, preparedPageIfKept, adoptPrepared, type ContrastWindows, type PreparedRect, type PreparedRows } from "./prepared";
 import { validateProfile } from "./profiles";
 import { mmToPx, pxRectToMm, rectMmToPx, rectMmToPxInside } from "./raster";
@@ -66,6 +66,23 @@ const STRONG_SHARE = 0.3;
 /** Findings with crops attached at most; the rest still carry their boxes and figures. */
 const MAX_CROPPED_FINDINGS = 100;
 
+/** The windows of the artwork's preparation for a sheet at `dpi` (the same for every sheet of one scanner). */
+export function contrastWindows(dpi: number, registrationToleranceMm: number, opticalBlurPx: number): ContrastWindows {
+  const sigmaPx = lowPassSigmaPx(dpi);
+  const radiusPx = Math.max(1, Math.ceil(mmToPx(registrationToleranceMm, dpi) - 0.25));
+  return { opticalBlurPx, sigmaPx, radiusPx, reachPx: radiusPx + Math.ceil(2 * sigmaPx) };
+}
+
+/**
+ * A flatbed's blur before any sheet of the run is measured, for preparing the artwork when it is approved:
+ * about 0.04 mm (common practice for office and graphic-arts flatbeds, no published source), as the nearest
+ * step tried. A run whose scanner measures otherwise prepares once more on its first sheet.
+ */
+export function likelyScannerBlurPx(dpi: number): number {
+  const px = (0.04 * dpi) / 25.4;
+  return OPTICAL_BLUR_STEPS_PX.reduce((best, s) => (Math.abs(s - px) < Math.abs(best - px) ? s : best));
+}
+
 export async function inspectSheet(input: InspectSheetInput): Promise<InspectionResult> {
   const { artwork, scan, ups, onProgress } = input;
   checkImage("artwork", artwork);
@@ -95,7 +112,7 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
   timings.normalise += performance.now() - started;
   const passes: Record<string, number> = { colourFit: fitted - started, scannerBlur: performance.now() - fitted };
 
-  const windows: ContrastWindows = { opticalBlurPx, sigmaPx, radiusPx, reachPx: radiusPx + Math.ceil(2 * sigmaPx) };
+  const windows = contrastWindows(dpi, profile.registrationToleranceMm, opticalBlurPx);
   const keptBefore = preparedPageIfKept(artwork, windows) !== undefined;
   let loaded = false;
   if (input.prepared && !keptBefore) {

@@ -7,7 +7,8 @@
 // typed arrays the preparation makes (one or more values a pixel): a map added there is stored without a change
 // here, and a stored object whose maps differ from what this build prepares is refused as stale.
 import { crc32 } from "node:zlib";
-import { prepareLowPassed, type ContrastWindows, type PreparedRect } from "./prepared";
+import { BLEED_PX, CACHE_MAX_PIXELS, preparePageRows, prepareLowPassed, type ContrastWindows, type PreparedRect } from "./prepared";
+import type { RgbaImage } from "./types";
 
 /**
  * Bump whenever the preparation's arithmetic changes (blur, low-pass, contrast windows): objects of another
@@ -99,6 +100,27 @@ export function preparedWriter(width: number, height: number, windows: ContrastW
   };
 }
 
+/**
+ * Prepares the page for `windows` and yields its stored form part by part: whole when the page is small, else
+ * in bands of full rows, each prepared with a halo so its edge rows see what a whole page would (wider than any
+ * window of the preparation: the scanner blur's and low-pass's reach, the contrast windows and BLEED_PX).
+ */
+export async function* preparePageParts(art: RgbaImage, windows: ContrastWindows): AsyncGenerator<Uint8Array> {
+  const writer = preparedWriter(art.width, art.height, windows);
+  yield writer.header();
+  const bandRows = art.width * art.height > CACHE_MAX_PIXELS ? writer.chunkRows * Math.max(1, Math.floor(4_000_000 / (art.width * writer.chunkRows))) : art.height;
+  const halo = preparationHalo(windows);
+  for (let y = 0; y < art.height; y += bandRows) {
+    const part = await preparePageRows(art, y, Math.min(bandRows, art.height - y), windows, halo);
+    yield* writer.chunks(part);
+  }
+}
+
+/** Rows around a band that a preparation made band by band needs for its windows. */
+export function preparationHalo(w: ContrastWindows): number {
+  return Math.ceil(3 * w.opticalBlurPx + 4 * w.sigmaPx + w.reachPx) + BLEED_PX + 4;
+}
+
 export function serialisePrepared(page: PreparedRect, windows: ContrastWindows): Uint8Array {
   return concat([...serialisePreparedParts(page, windows)]);
 }
@@ -164,19 +186,26 @@ export async function openPrepared(read: ReadRange, size: number, expect: Prepar
   const expected = dataStart + (chunks - 1) * fullChunk + chunkBytes(header, header.height - (chunks - 1) * header.chunkRows);
   if (size !== expected) throw new PreparedUnusable(`${size} bytes where ${expected} were expected`);
 
+  // Bands overlap by their halo: the last chunk read is kept, so each is read (and checked) about once.
+  let kept: { index: number; bytes: Uint8Array } | null = null;
+  const readChunk = async (c: number, cRows: number): Promise<Uint8Array> => {
+    if (kept?.index === c) return kept.bytes;
+    const chunk = await read(dataStart + c * fullChunk, chunkBytes(header, cRows));
+    const body = chunk.length - 4;
+    if (body < 0 || new DataView(chunk.buffer, chunk.byteOffset + body, 4).getUint32(0, true) !== crc32(chunk.subarray(0, body))) {
+      throw new PreparedUnusable(`chunk ${c} is damaged`);
+    }
+    kept = { index: c, bytes: chunk };
+    return chunk;
+  };
   const rows = async (y: number, h: number): Promise<PreparedRect> => {
     if (y < 0 || h < 1 || y + h > header.height) throw new RangeError(`Rows ${y}–${y + h} lie outside the prepared page`);
     const W = header.width;
     const out = Object.fromEntries(header.maps.map((m) => [m.name, new ARRAY_TYPES[m.type](h * W * m.components)]));
     const first = Math.floor(y / header.chunkRows), last = Math.floor((y + h - 1) / header.chunkRows);
-    const bytes = await read(dataStart + first * fullChunk, Math.min(size - dataStart - first * fullChunk, (last - first + 1) * fullChunk));
     for (let c = first; c <= last; c++) {
       const c0 = c * header.chunkRows, cRows = Math.min(header.chunkRows, header.height - c0);
-      const chunk = bytes.subarray((c - first) * fullChunk, (c - first) * fullChunk + chunkBytes(header, cRows));
-      const body = chunk.length - 4;
-      if (body < 0 || new DataView(chunk.buffer, chunk.byteOffset + body, 4).getUint32(0, true) !== crc32(chunk.subarray(0, body))) {
-        throw new PreparedUnusable(`chunk ${c} is damaged`);
-      }
+      const chunk = await readChunk(c, cRows);
       const from = Math.max(y, c0), to = Math.min(y + h, c0 + cRows);
       let o = 0;
       for (const m of header.maps) {
