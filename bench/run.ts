@@ -14,6 +14,7 @@ import { getProfile } from "../lib/imaging/profiles";
 import { mmToPx } from "../lib/imaging/raster";
 import { rasterisePage } from "../lib/imaging/rasterise";
 import { makeCartonPdf } from "../tests/support/carton";
+import { cliProcessSection } from "./cli-process";
 import { median, timeOdiff, timePixelmatch } from "./peers";
 import { Pool } from "./pool";
 import { COLOUR_SHIFT_HUE_DEG, DOT_SIZES_MM, makeSheet, VOID_SIZES_MM, type SheetScore, type SheetSpec } from "./sheets";
@@ -38,6 +39,7 @@ async function main(): Promise<void> {
     await peers(tmp);
     await throughput();
     await detection();
+    await cliProcessSection(out, tmp, log);
     if (quick) out.push("## B1 sheet at 300 dpi: peak memory\n\nSkipped in --quick.\n");
     else b1Memory(tmp);
     out.push(`Whole run: ${f1((performance.now() - started) / 1000)} s.\n`);

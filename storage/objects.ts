@@ -112,6 +112,27 @@ export async function getObjectBuffer(key: string, storage: Storage = defaultSto
   return Buffer.concat(chunks);
 }
 
+/** Bytes [offset, offset + length) of a stored object (a ranged GET). */
+export async function getObjectRange(key: string, offset: number, length: number, storage: Storage = defaultStorage): Promise<Buffer> {
+  const out = await storage.client.send(new GetObjectCommand({ Bucket: storage.bucket, Key: key, Range: `bytes=${offset}-${offset + length - 1}` }));
+  if (!out.Body) throw new Error(`Stored object ${key} has no body`);
+  const chunks: Buffer[] = [];
+  for await (const chunk of out.Body as Readable) chunks.push(chunk as Buffer);
+  return Buffer.concat(chunks);
+}
+
+/** Size in bytes of a stored object, or null when there is none. */
+export async function objectSize(key: string, storage: Storage = defaultStorage): Promise<number | null> {
+  try {
+    const head = await storage.client.send(new HeadObjectCommand({ Bucket: storage.bucket, Key: key }));
+    return head.ContentLength ?? null;
+  } catch (error) {
+    if (error instanceof NotFound || error instanceof NoSuchKey) return null;
+    if ((error as { $metadata?: { httpStatusCode?: number } }).$metadata?.httpStatusCode === 404) return null;
+    throw error;
+  }
+}
+
 export async function objectExists(key: string, storage: Storage = defaultStorage): Promise<boolean> {
   try {
     await storage.client.send(new HeadObjectCommand({ Bucket: storage.bucket, Key: key }));

@@ -19,7 +19,8 @@ function Pipeline({ initial }: { initial: JobPipelineView }) {
       if (!res.ok) throw new Error("The job's progress could not be refreshed; retrying.");
       return res.json();
     },
-    refetchInterval: (query) => (query.state.data?.busy ? 2000 : 30_000),
+    // Every second while a sheet is being inspected: findings then show within a second of being saved.
+    refetchInterval: (query) => (query.state.data?.busy ? 1000 : 30_000),
   });
   const refresh = () => void client.invalidateQueries({ queryKey: key });
   return (

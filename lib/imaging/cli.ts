@@ -4,17 +4,27 @@ import { readFile, rename, rm, writeFile } from "node:fs/promises";
 import path from "node:path";
 import { parseArgs } from "node:util";
 import sharp from "sharp";
-import { identityAlignment, inspectSheet } from "./inspect";
+import { alignScan } from "./align";
+import { defaultCacheDir, fileSupply } from "./cli-cache";
+import { identityAlignment, inspectSheet, likelyScannerBlurPx } from "./inspect";
 import { loadScan } from "./load-scan";
+import { loadOpenCv } from "./opencv";
 import { getProfile } from "./profiles";
-import { MAX_DPI, MIN_DPI, rasterisePage } from "./rasterise";
+import { MIN_DPI, rasterisePage, readPdfPages } from "./rasterise";
+import { estimateScanDpi, measuredDpi } from "./scan-dpi";
 import { ImagingError, type Alignment, type ArtworkRaster, type Finding, type InspectionResult, type RectMm, type UpsLayout } from "./types";
+
+/** Highest resolution compared at unless --artwork-dpi asks (see comparisonDpi). */
+export const COMPARISON_MAX_DPI = 300;
 
 const USAGE = `Usage: npm run inspect -- --artwork ARTWORK.pdf --scan SCAN.tif [options]
 
   --page N            artwork page (default 1)
-  --dpi N             scan resolution in dpi; overrides the file's (required when the file does not say)
-  --artwork-dpi N     resolution to rasterise the artwork at (default: the scan's, ${MIN_DPI}–${MAX_DPI})
+  --dpi N             scan resolution in dpi; overrides the file's (default: the file's, else measured
+                      from the scan against the page)
+  --artwork-dpi N     resolution to compare at (default: the scan's, at most ${COMPARISON_MAX_DPI})
+  --cache DIR         keep the artwork's prepared side here for the next run (default ${"$"}XDG_CACHE_HOME/tympan/prepared)
+  --no-cache          prepare the artwork's side afresh and keep nothing
   --profile NAME      tolerance profile (default standard-food)
   --ups RxC           ups on the sheet, rows × columns, e.g. 3x5
   --exclude x,y,w,h   area to leave out, mm from the trim box's top-left (repeatable), e.g. the sheet number
@@ -46,11 +56,16 @@ export async function runInspect(argv: string[], io: Io): Promise<number> {
       return value;
     };
     const [pdfBytes, scanBytes] = await Promise.all([readInput(args.artwork, "artwork"), readInput(args.scan, "scan")]);
-    const scan = await timed("load_scan", () => loadScan(scanBytes, { dpi: args.dpi }));
-    const artworkDpi = args.artworkDpi ?? scan.dpi;
-    if (args.artworkDpi === undefined && (scan.dpi < MIN_DPI || scan.dpi > MAX_DPI)) {
-      throw new ImagingError("usage", `The scan is ${scan.dpi} dpi; give --artwork-dpi between ${MIN_DPI} and ${MAX_DPI}.`);
+    const scan = await timed("load_scan", () => loadScan(scanBytes, { dpi: args.dpi, allowUnknownDpi: true }));
+    if (scan.dpiSource === "unknown") {
+      const { pages } = await timed("read_pdf", () => readPdfPages(pdfBytes));
+      const page = pages[args.page - 1];
+      if (!page) throw new ImagingError("page_out_of_range", `The artwork has ${pages.length} page${pages.length === 1 ? "" : "s"}; page ${args.page} does not exist.`);
+      scan.dpi = estimateScanDpi(scan, page);
     }
+    const artworkDpi = args.artworkDpi ?? comparisonDpi(scan.dpi);
+    // OpenCV (the alignment's) loads meanwhile: its WebAssembly compiles off the main thread while pdf.js renders.
+    if (!args.preAligned) void loadOpenCv().catch(() => undefined);
     const artwork = await timed("rasterise", () => rasterisePage(pdfBytes, { page: args.page, dpi: artworkDpi }));
     const profile = getProfile(args.profile);
     profile.excludedAreasMm.push(...args.exclude);
@@ -64,12 +79,20 @@ export async function runInspect(argv: string[], io: Io): Promise<number> {
         );
       }
       alignment = identityAlignment(artwork, scan);
+    } else if (scan.dpiSource === "unknown") {
+      // The estimate placed the scan; the scale the alignment fitted measures its resolution.
+      alignment = (await timed("align", () => alignScan(artwork, scan))).alignment;
+      scan.dpi = measuredDpi(scan.dpi, alignment.scale);
+      scan.dpiSource = "measured";
+      alignment = { ...alignment, scale: 1 };
     }
-    const result = await timed("inspect", () => inspectSheet({ artwork, scan, profile, ups: args.ups, alignment }));
-    Object.assign(timings, result.timingsMs);
+    const prepared = args.cache ? fileSupply(args.cache, pdfBytes, args.page, artwork, likelyScannerBlurPx(artwork.dpi), io.stderr) : undefined;
+    const result = await timed("inspect", () => inspectSheet({ artwork, scan, profile, ups: args.ups, alignment, prepared }));
+    Object.assign(timings, result.timingsMs, { align: (timings.align ?? 0) + result.timingsMs.align });
     if (args.annotate) await timed("annotate", () => writeAnnotated(args.annotate!, artwork, result.findings));
     const engine = { ...result, timingsMs: timings };
-    io.stdout(args.json ? JSON.stringify(toJson(engine)) + "\n" : summary(engine, args));
+    const resolution = { scan_dpi: scan.dpi, scan_dpi_source: scan.dpiSource, compared_at_dpi: artwork.dpi };
+    io.stdout(args.json ? JSON.stringify({ ...toJson(engine), resolution }) + "\n" : summary(engine, args, resolution));
     return result.findings.length > 0 ? 1 : 0;
   } catch (err) {
     const code = err instanceof ImagingError ? err.code : "internal";
@@ -91,6 +114,8 @@ interface Args {
   preAligned: boolean;
   json: boolean;
   annotate?: string;
+  /** Directory of prepared artwork, or undefined with --no-cache. */
+  cache?: string;
   help: boolean;
 }
 
@@ -113,6 +138,8 @@ function readArgs(argv: string[]): Args {
         "pre-aligned": { type: "boolean" },
         json: { type: "boolean" },
         annotate: { type: "string" },
+        cache: { type: "string" },
+        "no-cache": { type: "boolean" },
         help: { type: "boolean", short: "h" },
       },
     }));
@@ -154,6 +181,7 @@ function readArgs(argv: string[]): Args {
     preAligned: values["pre-aligned"] ?? false,
     json: values.json ?? false,
     annotate: values.annotate,
+    cache: values["no-cache"] ? undefined : (values.cache ?? defaultCacheDir()),
     help: false,
   };
 }
@@ -191,13 +219,14 @@ export function toJson(r: InspectionResult) {
   };
 }
 
-function summary(r: InspectionResult, args: Args): string {
+function summary(r: InspectionResult, args: Args, res: { scan_dpi: number; scan_dpi_source: string; compared_at_dpi: number }): string {
   const a = r.alignment;
   const c = r.coveredMm;
   const lines = [
     `Artwork ${path.basename(args.artwork)} page ${args.page}, scan ${path.basename(args.scan)}, profile ${args.profile}`,
     `Alignment: rotation ${a.rotationDeg.toFixed(3)}°, scale ${a.scale.toFixed(5)}, shift ${a.txMm.toFixed(2)} × ${a.tyMm.toFixed(2)} mm, ` +
       `residual ${a.residualPx.toFixed(2)} px`,
+    `Resolution: scan ${res.scan_dpi} dpi (${DPI_SOURCE[res.scan_dpi_source] ?? res.scan_dpi_source}), compared at ${res.compared_at_dpi} dpi`,
     `Covered: ${c.w.toFixed(1)} × ${c.h.toFixed(1)} mm from (${c.x.toFixed(1)}, ${c.y.toFixed(1)}) mm`,
     `Colour drift of the sheet: ΔE00 ${r.drift.deltaE00.toFixed(2)} (indicative; a spectrophotometer decides)`,
     r.findings.length === 0 ? "No findings." : `${r.findings.length} finding${r.findings.length === 1 ? "" : "s"}:`,
@@ -212,6 +241,19 @@ function summary(r: InspectionResult, args: Args): string {
   return lines.join("\n") + "\n";
 }
 
+const DPI_SOURCE: Record<string, string> = {
+  file: "from the file",
+  caller: "as given",
+  measured: "measured: the file does not say",
+};
+
+/**
+ * The resolution to compare at for a scan of `scanDpi`: the scan's own, but not above COMPARISON_MAX_DPI (the
+ * smallest defect a profile names, 0.2 mm, is still 2.4 px there; more only costs time and memory).
+ */
+export function comparisonDpi(scanDpi: number): number {
+  return Math.min(COMPARISON_MAX_DPI, Math.max(MIN_DPI, Math.round(scanDpi)));
+}
 const KIND_COLOUR: Record<Finding["kind"], string> = {
   extra_ink: "#d0021b",
   missing_ink: "#0057d9",

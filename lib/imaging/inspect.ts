@@ -6,8 +6,8 @@ import { alignedScanSource, borrowScratch, haloPx, processRect, returnScratch, t
 import { makeCrops } from "./crops";
 import { RegionCollector, regionsToFindings } from "./findings";
 import { fitNormalisation, lowPassSigmaPx } from "./normalise";
-import { estimateOpticalBlur } from "./optics";
-import { CACHE_MAX_PIXELS } from "./prepared";
+import { estimateOpticalBlur, OPTICAL_BLUR_STEPS_PX, suggestBlurStep } from "./optics";
+import { CACHE_MAX_PIXELS, preparedPageIfKept, adoptPrepared, type ContrastWindows, type PreparedRect, type PreparedRows } from "./prepared";
 import { validateProfile } from "./profiles";
 import { mmToPx, pxRectToMm, rectMmToPx, rectMmToPxInside } from "./raster";
 import {
@@ -33,6 +33,22 @@ export interface InspectSheetInput {
   onProgress?: (p: InspectionProgress) => void;
   /** An alignment already known (a pre-aligned scan, or one computed earlier); skips the align stage. */
   alignment?: Alignment;
+  /** Where the artwork's prepared side is kept between processes (a file, the bucket). */
+  prepared?: PreparedSupply;
+}
+
+/**
+ * A store of the artwork's preparation (prepared.ts) outside this thread. The sheet's windows are known only
+ * once its scanner blur is measured, so the store is asked then; when it has none, the sheet prepares the page
+ * and hands it over to be kept.
+ */
+export interface PreparedSupply {
+  /** The scanner blur (σ px) the stored preparation was made for: the blur search starts there. */
+  blurHintPx?: number;
+  /** The stored preparation for these windows (a whole page or rows on demand), or null. Never throws. */
+  load(windows: ContrastWindows): Promise<PreparedRect | PreparedRows | null>;
+  /** A whole page this sheet prepared (pages up to CACHE_MAX_PIXELS). */
+  made?(windows: ContrastWindows, page: PreparedRect): Promise<void>;
 }
 
 /**
@@ -49,6 +65,23 @@ const LARGE_PAGE_BAND_PIXELS = 1 << 21;
 const STRONG_SHARE = 0.3;
 /** Findings with crops attached at most; the rest still carry their boxes and figures. */
 const MAX_CROPPED_FINDINGS = 100;
+
+/** The windows of the artwork's preparation for a sheet at `dpi` (the same for every sheet of one scanner). */
+export function contrastWindows(dpi: number, registrationToleranceMm: number, opticalBlurPx: number): ContrastWindows {
+  const sigmaPx = lowPassSigmaPx(dpi);
+  const radiusPx = Math.max(1, Math.ceil(mmToPx(registrationToleranceMm, dpi) - 0.25));
+  return { opticalBlurPx, sigmaPx, radiusPx, reachPx: radiusPx + Math.ceil(2 * sigmaPx) };
+}
+
+/**
+ * A flatbed's blur before any sheet of the run is measured, for preparing the artwork when it is approved:
+ * about 0.04 mm (common practice for office and graphic-arts flatbeds, no published source), as the nearest
+ * step tried. A run whose scanner measures otherwise prepares once more on its first sheet.
+ */
+export function likelyScannerBlurPx(dpi: number): number {
+  const px = (0.04 * dpi) / 25.4;
+  return OPTICAL_BLUR_STEPS_PX.reduce((best, s) => (Math.abs(s - px) < Math.abs(best - px) ? s : best));
+}
 
 export async function inspectSheet(input: InspectSheetInput): Promise<InspectionResult> {
   const { artwork, scan, ups, onProgress } = input;
@@ -74,10 +107,21 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
   started = performance.now();
   const fit = fitNormalisation(artwork, scan, alignment.artworkToScan, inspectPx, Math.ceil(2.5 * sigmaPx) + radiusPx);
   const fitted = performance.now();
+  if (input.prepared?.blurHintPx !== undefined) suggestBlurStep(artwork, input.prepared.blurHintPx);
   const opticalBlurPx = await estimateOpticalBlur(artwork, scan, alignment, fit.model, sigmaPx, inspectPx);
   timings.normalise += performance.now() - started;
   const passes: Record<string, number> = { colourFit: fitted - started, scannerBlur: performance.now() - fitted };
 
+  const windows = contrastWindows(dpi, profile.registrationToleranceMm, opticalBlurPx);
+  const keptBefore = preparedPageIfKept(artwork, windows) !== undefined;
+  let loaded = false;
+  if (input.prepared && !keptBefore) {
+    started = performance.now();
+    const stored = await input.prepared.load(windows);
+    if (stored) adoptPrepared(artwork, windows, stored);
+    loaded = stored !== null;
+    passes.loadPrepared = performance.now() - started;
+  }
   const scratch = borrowScratch();
   let findings: Finding[];
   try {
@@ -87,7 +131,7 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
       model: fit.model,
       sigmaPx,
       radiusPx,
-      windows: { opticalBlurPx, sigmaPx, radiusPx, reachPx: radiusPx + Math.ceil(2 * sigmaPx) },
+      windows,
       lowDeltaE00: Math.max(1, 0.5 * peak),
       peakDeltaE00: peak,
       inspectPx,
@@ -101,6 +145,8 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
   } finally {
     returnScratch(scratch);
   }
+  const page = keptBefore || loaded ? undefined : preparedPageIfKept(artwork, windows);
+  if (page && input.prepared?.made) await input.prepared.made(windows, page);
   progress("findings", 100);
   for (const t of [timings, passes]) for (const k of Object.keys(t)) t[k] = Math.round(t[k] * 10) / 10;
   return {

@@ -19,6 +19,8 @@ export interface LoadScanOptions {
   /** Resolution of the scan; overrides the file's when given. */
   dpi?: number;
   maxMegapixels?: number;
+  /** A file without a resolution tag loads with dpi 0 and dpiSource "unknown" (the caller measures it) instead of failing. */
+  allowUnknownDpi?: boolean;
   /** "library" forces sharp's conversion for every profile (used to cross-check our own). */
   iccConversion?: "auto" | "library";
 }
@@ -58,7 +60,8 @@ export async function loadScan(bytes: Uint8Array, opts: LoadScanOptions = {}): P
         `${maxMegapixels}. Scan at a lower resolution or split the sheet.`,
     );
   }
-  const dpi = resolveDpi(opts.dpi, meta.density);
+  const unknown = opts.allowUnknownDpi === true && opts.dpi === undefined && !(meta.density! > 0);
+  const dpi = unknown ? 0 : resolveDpi(opts.dpi, meta.density);
   const bitsPerSample = meta.depth === "ushort" ? 16 : 8;
   if (meta.depth && meta.depth !== "uchar" && meta.depth !== "ushort") {
     throw new ImagingError("scan_unsupported", `Scans must have 8 or 16 bits a sample; this one stores ${meta.depth}.`);
@@ -119,7 +122,7 @@ export async function loadScan(bytes: Uint8Array, opts: LoadScanOptions = {}): P
       height: h,
       data,
       dpi,
-      dpiSource: opts.dpi !== undefined ? "caller" : "file",
+      dpiSource: unknown ? "unknown" : opts.dpi !== undefined ? "caller" : "file",
       format: meta.format!,
       bitsPerSample,
       colourConversion,

@@ -85,6 +85,15 @@ export async function estimateOpticalBlur(
 
 const KEEP_LAST_WITHIN = 0.95;
 
+/**
+ * Start this artwork's blur search at `sigmaPx` (the width a stored preparation was made for) unless a sheet
+ * of it was already measured in this thread: with the same keep-unless-clearly-better rule, the stored one is used.
+ */
+export function suggestBlurStep(artwork: RgbaImage, sigmaPx: number): void {
+  const i = OPTICAL_BLUR_STEPS_PX.indexOf(sigmaPx);
+  if (i >= 0 && !lastStep.has(artwork.data.buffer)) lastStep.set(artwork.data.buffer, i);
+}
+
 /** Per thread: the step found on the last sheet of each artwork. */
 const lastStep = new WeakMap<ArrayBufferLike, number>();
 

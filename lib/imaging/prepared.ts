@@ -53,10 +53,47 @@ const cache = new ArtworkCache<PreparedRect>(2);
  * computed for the rectangle alone (its border rows then see a clipped window, so callers keep a halo).
  */
 export async function preparedRect(art: RgbaImage, rect: PxRect, w: ContrastWindows): Promise<PreparedRect> {
+  const key = windowsKey(w);
+  const stored = storedRows.peek(art, key);
+  if (stored) {
+    // Rows of a stored preparation (prepared-store.ts), read band by band, so even a B1 page stays bounded.
+    const band = await stored(rect.y, rect.h);
+    if (rect.x === 0 && rect.w === art.width) return { ...band, rect };
+    return sub({ ...band, rect: { x: 0, y: 0, w: art.width, h: rect.h } }, { ...rect, y: 0 }, rect);
+  }
   if (art.width * art.height > CACHE_MAX_PIXELS) return prepare(art, rect, w);
-  const key = `${w.opticalBlurPx}:${w.sigmaPx}:${w.radiusPx}:${w.reachPx}`;
   const whole = cache.peek(art, key) ?? cache.put(art, key, await prepare(art, { x: 0, y: 0, w: art.width, h: art.height }, w));
   return sub(whole, rect);
+}
+
+const windowsKey = (w: ContrastWindows) => `${w.opticalBlurPx}:${w.sigmaPx}:${w.radiusPx}:${w.reachPx}`;
+
+/** Full rows [y, y + h) of a page's preparation, from wherever it is kept. */
+export type PreparedRows = (y: number, h: number) => Promise<PreparedRect>;
+const storedRows = new ArtworkCache<PreparedRows>(2);
+
+/**
+ * Use a preparation made earlier (loaded from a file or the bucket) for this artwork and these windows, in this
+ * thread: a whole page goes into the cache, rows read on demand are kept as their source.
+ */
+export function adoptPrepared(art: RgbaImage, w: ContrastWindows, prepared: PreparedRect | PreparedRows): void {
+  if (typeof prepared === "function") storedRows.put(art, windowsKey(w), prepared);
+  else cache.put(art, windowsKey(w), prepared);
+}
+
+/** The whole page's preparation if this thread made or was given it (pages up to CACHE_MAX_PIXELS). */
+export function preparedPageIfKept(art: RgbaImage, w: ContrastWindows): PreparedRect | undefined {
+  return cache.peek(art, windowsKey(w));
+}
+
+/**
+ * Full rows [y, y + h) of the page prepared from the artwork with `halo` rows around them, so that windows at
+ * the band's edges see what a whole-page preparation would (for making a large page's preparation band by band).
+ */
+export async function preparePageRows(art: RgbaImage, y: number, h: number, w: ContrastWindows, halo: number): Promise<PreparedRect> {
+  const y0 = Math.max(0, y - halo), y1 = Math.min(art.height, y + h + halo);
+  const ext = await prepare(art, { x: 0, y: y0, w: art.width, h: y1 - y0 }, w);
+  return sub({ ...ext, rect: { x: 0, y: 0, w: art.width, h: y1 - y0 } }, { x: 0, y: y - y0, w: art.width, h }, { x: 0, y, w: art.width, h });
 }
 
 async function prepare(art: RgbaImage, rect: PxRect, w: ContrastWindows): Promise<PreparedRect> {
@@ -76,13 +113,16 @@ export function prepareLowPassed(low: Uint8Array, rect: PxRect, w: ContrastWindo
   return { rect, low, contrast, wideContrast, lightGround };
 }
 
-/** A rectangle of a prepared whole page (copied unless it is a run of full rows). */
-function sub(whole: PreparedRect, r: PxRect): PreparedRect {
+/**
+ * A rectangle of a prepared whole page (copied unless it is a run of full rows); `as` is the rectangle the
+ * result says it covers (r itself unless the prepared rows start below the page's top).
+ */
+function sub(whole: PreparedRect, r: PxRect, as: PxRect = r): PreparedRect {
   const W = whole.rect.w;
   if (r.x === 0 && r.w === W) {
     const a = r.y * W, b = (r.y + r.h) * W;
     return {
-      rect: r,
+      rect: as,
       low: whole.low.subarray(a * 4, b * 4),
       contrast: whole.contrast.subarray(a, b),
       wideContrast: whole.wideContrast.subarray(a, b),
@@ -91,7 +131,7 @@ function sub(whole: PreparedRect, r: PxRect): PreparedRect {
   }
   const n = r.w * r.h;
   const out: PreparedRect = {
-    rect: r,
+    rect: as,
     low: new Uint8Array(n * 4),
     contrast: new Uint8Array(n),
     wideContrast: new Uint8Array(n),

@@ -22,8 +22,8 @@ export interface ArtworkRaster extends RgbaImage {
 /** A decoded scan, converted to sRGB. */
 export interface ScanImage extends RgbaImage {
   dpi: number;
-  /** Where the resolution came from. */
-  dpiSource: "file" | "caller";
+  /** Where the resolution came from; "measured": the file said nothing and the resolution was estimated from the scan against the page (cli.ts). */
+  dpiSource: "file" | "caller" | "unknown" | "measured";
 }
 
 export interface RectMm {

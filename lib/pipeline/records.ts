@@ -44,6 +44,24 @@ export async function savePageSize(revisionId: number, page: { widthMm: number; 
     .where(and(eq(artworkRevisions.id, revisionId), ne(artworkRevisions.rasterStatus, "ready")));
 }
 
+export async function savePrepared(revisionId: number, key: string) {
+  await db.update(artworkRevisions).set({ preparedKey: key }).where(eq(artworkRevisions.id, revisionId));
+}
+
+/**
+ * The registration tolerance the job's sheets will most likely be inspected with: the job's profile, else the
+ * one an upload gets when it names none (the first).
+ */
+export async function likelyRegistrationToleranceMm(job: { toleranceProfileId: number | null }): Promise<number | null> {
+  const rows = await db
+    .select({ um: toleranceProfiles.registrationToleranceUm })
+    .from(toleranceProfiles)
+    .where(job.toleranceProfileId ? eq(toleranceProfiles.id, job.toleranceProfileId) : sql`1 = 1`)
+    .orderBy(toleranceProfiles.id)
+    .limit(1);
+  return rows[0] ? rows[0].um / 1000 : null;
+}
+
 export async function failRaster(revisionId: number, message: string) {
   await db.update(artworkRevisions).set({ rasterStatus: "failed", rasterError: message }).where(eq(artworkRevisions.id, revisionId));
 }

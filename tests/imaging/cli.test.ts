@@ -16,7 +16,8 @@ const DOT = { xMm: 60, yMm: 110, diameterMm: 1.5 };
 let dir: string;
 
 function inspect(...args: string[]) {
-  const run = spawnSync(TSX, [CLI, ...args], { cwd: ROOT, encoding: "utf8", env: { ...process.env, NEXT_TELEMETRY_DISABLED: "1" } });
+  const env = { ...process.env, NEXT_TELEMETRY_DISABLED: "1", XDG_CACHE_HOME: path.join(dir, "cache") };
+  const run = spawnSync(TSX, [CLI, ...args], { cwd: ROOT, encoding: "utf8", env });
   return { code: run.status, stdout: run.stdout, stderr: run.stderr };
 }
 const file = (name: string) => path.join(dir, name);
@@ -41,10 +42,53 @@ beforeAll(async () => {
   const glass = await simulateSheet(r, { geometry: { rotationDeg: 0.4, marginMm: 5 } });
   const g = glass.scan;
   await sharp(Buffer.from(g.data), { raw: { width: g.width, height: g.height, channels: 4 } }).png().withDensity(DPI).toFile(file("turned.png"));
+  // The same without a resolution tag (no pHYs chunk: PNG specification, ISO/IEC 15948, 11.3.5.3).
+  await sharp(Buffer.from(g.data), { raw: { width: g.width, height: g.height, channels: 4 } }).png().toFile(file("untagged.png"));
   writeFileSync(file("notes.pdf"), "these are notes, not a PDF");
 });
 
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+describe("the scan's resolution", () => {
+  it("is taken from the file's tag, and compared at", () => {
+    const run = inspect("--artwork", file("artwork.pdf"), "--scan", file("turned.png"), "--json", "--no-cache");
+    expect(run.stderr).toBe("");
+    expect(JSON.parse(run.stdout).resolution).toEqual({ scan_dpi: DPI, scan_dpi_source: "file", compared_at_dpi: DPI });
+  });
+
+  it("is measured when the file does not say, and the sheet inspects as the tagged one does", async () => {
+    expect((await sharp(file("untagged.png")).metadata()).density).toBeUndefined();
+    const tagged = JSON.parse(inspect("--artwork", file("artwork.pdf"), "--scan", file("turned.png"), "--json", "--no-cache").stdout);
+    const run = inspect("--artwork", file("artwork.pdf"), "--scan", file("untagged.png"), "--json", "--no-cache");
+    expect(run.stderr).toBe("");
+    const out = JSON.parse(run.stdout);
+    expect(out.resolution.scan_dpi_source).toBe("measured");
+    expect(out.resolution.compared_at_dpi).toBe(DPI);
+    expect(Math.abs(out.resolution.scan_dpi - DPI)).toBeLessThan(DPI * 0.002);
+    expect(out.findings.length).toBe(tagged.findings.length);
+    expect(out.alignment.rotation_deg).toBeCloseTo(tagged.alignment.rotation_deg, 2);
+  });
+
+  it("--dpi overrides the file", () => {
+    const run = inspect("--artwork", file("artwork.pdf"), "--scan", file("turned.png"), "--json", "--no-cache", "--dpi", "150");
+    expect(JSON.parse(run.stdout).resolution.scan_dpi_source).toBe("caller");
+  });
+
+  it("keeps the artwork's prepared side for the next run, which reads it and finds the same", () => {
+    const cache = path.join(dir, "prepared-cache");
+    const first = inspect("--artwork", file("artwork.pdf"), "--scan", file("turned.png"), "--json", "--cache", cache);
+    expect(first.stderr).toBe("");
+    expect(readdirSync(cache).filter((f) => f.endsWith(".bin"))).toHaveLength(1);
+    const second = inspect("--artwork", file("artwork.pdf"), "--scan", file("turned.png"), "--json", "--cache", cache);
+    expect(JSON.parse(second.stdout).findings).toEqual(JSON.parse(first.stdout).findings);
+    // A damaged file is prepared again and replaced, with a word on stderr.
+    const [bin] = readdirSync(cache);
+    writeFileSync(path.join(cache, bin), "damaged");
+    const third = inspect("--artwork", file("artwork.pdf"), "--scan", file("turned.png"), "--json", "--cache", cache);
+    expect(third.stderr).toMatch(/not used/);
+    expect(JSON.parse(third.stdout).findings).toEqual(JSON.parse(first.stdout).findings);
+  });
+});
 
 // Exit status follows diff(1) (POSIX.1-2017, "diff", EXIT STATUS): 0 no differences, 1 differences, >1 trouble.
 describe("npm run inspect", () => {
@@ -62,7 +106,7 @@ describe("npm run inspect", () => {
     expect(run.stderr).toBe("");
     expect(run.stdout.trim().split("\n")).toHaveLength(1);
     const out = JSON.parse(run.stdout);
-    expect(Object.keys(out)).toEqual(["alignment", "covered_mm", "drift", "findings", "timings_ms"]);
+    expect(Object.keys(out)).toEqual(["alignment", "covered_mm", "drift", "findings", "timings_ms", "resolution"]);
     expect(Object.keys(out.alignment)).toEqual(["rotation_deg", "scale", "tx_mm", "ty_mm", "residual_px"]);
     expect(Object.keys(out.covered_mm)).toEqual(["x", "y", "w", "h"]);
     expect(Object.keys(out.drift)).toEqual(["deltaE00"]);

@@ -8,7 +8,8 @@ import { PDFDocument } from "pdf-lib";
 import { db } from "@/db/client";
 import { artworkRevisions, findings, inspections, jobs, scans } from "@/db/schema";
 import type { Actor } from "@/lib/auth/policy";
-import { ensureBucket, listKeys } from "@/storage/objects";
+import { deserialisePrepared } from "@/lib/imaging/prepared-store";
+import { ensureBucket, getObjectBuffer, listKeys } from "@/storage/objects";
 import { cartonArtwork, perfectScanPng } from "./support/artwork";
 import { makeFixture, multipart, until, type Fixture } from "./support/fixtures";
 import { pngHeaderClaiming } from "./support/files";
@@ -85,6 +86,19 @@ describe("the inspection pipeline, end to end", () => {
     expect(revision.rasterKeys?.[0]).toMatch(new RegExp(`^rasters/[0-9a-f-]{36}/${DPI}\\.png$`));
     expect(revision.pageWidthUm).toBe(210_000);
     expect(revision.pageHeightUm).toBe(148_000);
+  });
+
+  it("the raster job also prepares the artwork's side of the comparison and stores it in the bucket", async () => {
+    const revision = await until("prepared artwork", async () => {
+      const [r] = await db.select().from(artworkRevisions).where(eq(artworkRevisions.id, revisionId));
+      return r.preparedKey ? r : null;
+    });
+    expect(revision.preparedKey).toMatch(new RegExp(`^prepared/[0-9a-f-]{36}/${DPI}/blur[\\d.]+-sigma[\\d.]+-r\\d+-reach\\d+\\.bin$`));
+    const bytes = new Uint8Array(await getObjectBuffer(revision.preparedKey!));
+    const header = JSON.parse(new TextDecoder().decode(bytes.subarray(12, 12 + new DataView(bytes.buffer, bytes.byteOffset).getUint32(8, true))));
+    const raster = await sharp(await getObjectBuffer(revision.rasterKeys![0])).metadata();
+    const page = await deserialisePrepared(bytes, { width: raster.width!, height: raster.height!, windows: header.windows });
+    expect(page.rect).toEqual({ x: 0, y: 0, w: raster.width, h: raster.height });
   });
 
   let cleanScanId: number;

@@ -4,7 +4,7 @@
 import { DelayedError, UnrecoverableError, type SandboxedJob } from "bullmq";
 import sharp from "sharp";
 import { env } from "@/lib/env";
-import { inspectSheet } from "@/lib/imaging/inspect";
+import { inspectSheet, likelyScannerBlurPx } from "@/lib/imaging/inspect";
 import { loadScan } from "@/lib/imaging/load-scan";
 import { ImagingError, type ArtworkRaster, type InspectionProgress } from "@/lib/imaging/types";
 import {
@@ -20,8 +20,9 @@ import {
 } from "@/lib/pipeline/records";
 import { expandExcludedAreas, upsAreaOf } from "@/lib/pipeline/excluded-areas";
 import { enqueueMail, enqueueRasterise, type InspectData } from "@/lib/queue/queues";
-import { keys, newObjectId } from "@/storage/keys";
+import { keys, newObjectId, sourceObjectId } from "@/storage/keys";
 import { deleteUnder, getObjectBuffer, putObject } from "@/storage/objects";
+import { bucketSupply } from "../prepared-artwork";
 import { buildTiles } from "./tiles";
 
 const RASTER_WAIT_MS = 3000;
@@ -121,6 +122,7 @@ export default async function inspect(job: SandboxedJob<InspectData>, token?: st
       profile,
       ups,
       crops: true,
+      prepared: bucketSupply(sourceObjectId(r.sourceKey), artwork, likelyScannerBlurPx(artwork.dpi)),
       onProgress: (p: InspectionProgress) => void progress(p.stage, 8 + p.percent * 0.82),
     });
 

@@ -3,11 +3,14 @@
 // key, and no extra dependency (Node 20 has no zstd; raw+gzip would be larger and slower to read than PNG).
 import { UnrecoverableError, type SandboxedJob } from "bullmq";
 import sharp from "sharp";
+import { contrastWindows, likelyScannerBlurPx } from "@/lib/imaging/inspect";
+import { getProfile } from "@/lib/imaging/profiles";
 import { MIN_DPI, rasterisePage } from "@/lib/imaging/rasterise";
-import { ImagingError } from "@/lib/imaging/types";
-import { failRaster, loadRevisionWork, savePageSize, saveRaster } from "@/lib/pipeline/records";
+import { ImagingError, type RgbaImage } from "@/lib/imaging/types";
+import { failRaster, likelyRegistrationToleranceMm, loadRevisionWork, savePageSize, savePrepared, saveRaster } from "@/lib/pipeline/records";
 import type { RasteriseData } from "@/lib/queue/queues";
 import { keys, sourceObjectId } from "@/storage/keys";
+import { preparedKey, storePrepared } from "../prepared-artwork";
 import { pdfHasScript } from "./pdf-scripts";
 import { getObjectBuffer, objectExists, putObject } from "@/storage/objects";
 
@@ -45,7 +48,10 @@ export default async function rasterise(job: SandboxedJob<RasteriseData>): Promi
   const { revision, job: printJob } = work;
   const dpi = revision.rasterDpi ?? printJob.artworkDpi;
   const key = keys.raster(sourceObjectId(revision.sourceKey), dpi);
-  if (revision.rasterStatus === "ready" && revision.rasterKeys?.includes(key) && (await objectExists(key))) return { key };
+  if (revision.rasterStatus === "ready" && revision.rasterKeys?.includes(key) && (await objectExists(key))) {
+    if (!revision.preparedKey) await prepare(job, revision.id, sourceObjectId(revision.sourceKey), await decodeRaster(key, dpi), printJob);
+    return { key };
+  }
 
   const pdf = await getObjectBuffer(revision.sourceKey);
   if (await pdfHasScript(new Uint8Array(pdf))) {
@@ -78,5 +84,35 @@ export default async function rasterise(job: SandboxedJob<RasteriseData>): Promi
     box: page.box,
     pageCount: page.pageCount,
   });
+  await prepare(job, revision.id, sourceObjectId(revision.sourceKey), { ...page, dpi }, printJob);
   return { key };
+}
+
+/**
+ * The artwork's side of the comparison, prepared now for the likely scanner and the job's profile, so that the
+ * first sheet does not pay for it (worker/prepared-artwork.ts). After the raster is saved: an inspection that
+ * starts meanwhile prepares for itself. A failure here is logged only; sheets then prepare as they go.
+ */
+async function prepare(
+  job: SandboxedJob<RasteriseData>,
+  revisionId: number,
+  objectId: string,
+  art: RgbaImage & { dpi: number },
+  printJob: { toleranceProfileId: number | null },
+) {
+  try {
+    await job.updateProgress({ stage: "prepare", percent: 90 });
+    const tolerance = (await likelyRegistrationToleranceMm(printJob)) ?? getProfile("strict-pharma").registrationToleranceMm;
+    const windows = contrastWindows(art.dpi, tolerance, likelyScannerBlurPx(art.dpi));
+    const key = preparedKey(objectId, art.dpi, windows);
+    await storePrepared(key, art, windows);
+    await savePrepared(revisionId, key);
+  } catch (error) {
+    console.warn(`artwork revision ${revisionId}: not prepared ahead (${(error as Error).message}); sheets prepare it instead`);
+  }
+}
+
+async function decodeRaster(key: string, dpi: number): Promise<RgbaImage & { dpi: number }> {
+  const { data, info } = await sharp(await getObjectBuffer(key)).ensureAlpha().raw().toBuffer({ resolveWithObject: true });
+  return { width: info.width, height: info.height, data: new Uint8Array(data.buffer, data.byteOffset, data.length), dpi };
 }
