@@ -3,14 +3,15 @@
 // whole, with its peak RSS. Scores: false regions per clean sheet, recall (loose and tight boxes), recall of
 // defects ≥ 0.5 mm at 300 dpi, refusals (false and correct) and kind accuracy.
 //
-//   npx tsx bench/press-sim-eval.ts --set heldout --seeds 5000-5011 [--data DIR] [--results FILE]
+//   npx tsx bench/press-sim-eval.ts --set heldout --seeds 5000-5011 [--data DIR] [--results FILE] [--runs FILE.jsonl]
 //
 // With --data, cases already in DIR (case-SEED/truth.json) are used and missing ones are made there; without it
-// they are made in a temporary folder. Held-out seeds (5000–5999) are for reporting only: tune on training seeds.
+// they are made in a temporary folder. With --runs, each case's run is appended to FILE.jsonl and runs already
+// there are reused (to resume, or to re-score without running the engine again). Held-out seeds (5000–5999) are for reporting only: tune on training seeds.
 import { execFile } from "node:child_process";
 import { createHash } from "node:crypto";
 import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from "node:fs";
-import { mkdir, readFile, rename, rm, writeFile } from "node:fs/promises";
+import { appendFile, mkdir, readFile, rename, rm, writeFile } from "node:fs/promises";
 import os from "node:os";
 import path from "node:path";
 import { parseArgs } from "node:util";
@@ -210,14 +211,28 @@ export function markdown(set: SeedSet, seeds: number[], runs: CaseRun[], first?:
 }
 
 /** Makes or reuses the cases and runs each through the CLI, one at a time (so times are per process). */
-export async function evaluate(seeds: number[], dataDir?: string, log: (s: string) => void = console.error): Promise<CaseRun[]> {
+export async function evaluate(seeds: number[], dataDir?: string, log: (s: string) => void = console.error, runsFile?: string): Promise<CaseRun[]> {
   const dir = dataDir ?? mkdtempSync(path.join(os.tmpdir(), "press-sim-eval-"));
+  // Runs already in the file (one JSON line a case) are kept, so a long evaluation can be resumed.
+  const done = new Map<number, CaseRun>();
+  if (runsFile && existsSync(runsFile)) {
+    for (const line of readFileSync(runsFile, "utf8").split("\n").filter(Boolean)) {
+      const r = JSON.parse(line) as CaseRun;
+      done.set(r.truth.seed, r);
+    }
+  }
   try {
     const runs: CaseRun[] = [];
     for (const seed of seeds) {
+      const kept = done.get(seed);
+      if (kept) {
+        runs.push(kept);
+        continue;
+      }
       const caseDir = await ensureCase(dir, seed);
       const r = await runCase(caseDir);
       log(`press-sim case ${seed}: exit ${r.exitCode}, ${r.findings.length} findings, ${r.wallS.toFixed(1)} s`);
+      if (runsFile) await appendFile(runsFile, JSON.stringify(r) + "\n");
       runs.push(r);
     }
     return runs;
@@ -227,14 +242,16 @@ export async function evaluate(seeds: number[], dataDir?: string, log: (s: strin
 }
 
 async function main(): Promise<void> {
-  const { values } = parseArgs({ options: { seeds: { type: "string" }, set: { type: "string" }, data: { type: "string" }, results: { type: "string" } } });
+  const { values } = parseArgs({
+    options: { seeds: { type: "string" }, set: { type: "string" }, data: { type: "string" }, results: { type: "string" }, runs: { type: "string" } },
+  });
   const set = (values.set ?? "heldout") as SeedSet;
   if (set !== "training" && set !== "heldout") throw new Error("--set must be training or heldout");
   const range = set === "heldout" ? HELD_OUT : TRAINING;
   const seeds = parseSeeds(values.seeds ?? `${range.from}-${range.from + 11}`);
   const wrong = seeds.find((s) => seedSet(s) !== set);
   if (wrong !== undefined) throw new Error(`Seed ${wrong} is not in the ${set} range (${range.from}–${range.to}).`);
-  const runs = await evaluate(seeds, values.data);
+  const runs = await evaluate(seeds, values.data, console.error, values.runs);
   const text = markdown(set, seeds, runs).join("\n");
   if (values.results) await writeFile(values.results, text + "\n");
   process.stdout.write(text + "\n");
