@@ -17,6 +17,7 @@ import { makeCartonPdf } from "../tests/support/carton";
 import { cliProcessSection } from "./cli-process";
 import { median, timeOdiff, timePixelmatch } from "./peers";
 import { Pool } from "./pool";
+import { pressSimSection } from "./press-sim-eval";
 import { COLOUR_SHIFT_HUE_DEG, DOT_SIZES_MM, makeSheet, VOID_SIZES_MM, type SheetScore, type SheetSpec } from "./sheets";
 
 const quick = process.argv.includes("--quick");
@@ -38,7 +39,8 @@ async function main(): Promise<void> {
     header();
     await peers(tmp);
     await throughput();
-    await detection();
+    const first = await detection();
+    out.push(...(await pressSimSection(quick, first, log)));
     await cliProcessSection(out, tmp, log);
     if (quick) out.push("## B1 sheet at 300 dpi: peak memory\n\nSkipped in --quick.\n");
     else b1Memory(tmp);
@@ -210,7 +212,7 @@ async function throughput(): Promise<void> {
 }
 
 /** Detection recall by defect size and false findings on simulated sheets at 300 dpi. */
-async function detection(): Promise<void> {
+async function detection(): Promise<{ falsePerClean: number; recall: number }> {
   const clean = quick ? 4 : 20;
   const defective = quick ? 2 : 10;
   log(`detection: ${clean} clean and ${defective} defect sheets at 300 dpi`);
@@ -265,6 +267,7 @@ async function detection(): Promise<void> {
     missed.set(key, (missed.get(key) ?? 0) + 1);
   }
   if (missed.size) out.push(`Missed, by kind and background: ${[...missed].map(([k, n]) => `${k} × ${n}`).join("; ")}.`, "");
+  return { falsePerClean: cleanFalse / clean, recall: truths.filter((t) => t.found).length / truths.length };
 }
 
 /** B1 at 300 dpi in child processes: the scan is made in one, the measured inspection runs in another. */

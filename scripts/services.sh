@@ -40,6 +40,8 @@ install_packages() {
   command -v mariadbd >/dev/null 2>&1 || [[ -x /usr/sbin/mariadbd ]] || missing+=(mariadb-server)
   command -v redis-server >/dev/null 2>&1 || missing+=(redis-server)
   if [[ "$WITH_CHROMIUM" = 1 ]] && [[ ! -x /usr/bin/chromium ]]; then missing+=(chromium); fi
+  # Tests and the benchmark print press-sim sheets with Ghostscript (a renderer other than the engine's pdf.js).
+  if [[ "$WITH_CHROMIUM" = 1 ]] && ! command -v gs >/dev/null 2>&1; then missing+=(ghostscript); fi
   ((${#missing[@]} == 0)) && return 0
   local line="apt-get -o DPkg::Lock::Timeout=300 install -y --no-install-recommends ${missing[*]}"
   if [[ "$(id -u)" != 0 ]]; then
