@@ -14,7 +14,10 @@ export function CustomerForm({ customer }: { customer?: CustomerDetail }) {
   // A bad address is reported as contactEmails.N; the field shows the first such message.
   const emailError = Object.entries(errors).find(([k]) => k.startsWith("contactEmails"))?.[1];
   return (
-    <form action={action} className="space-y-4" noValidate>
+    <form
+      // React resets a form after its action; a fresh form takes the echoed values (selects included) as defaults.
+      key={JSON.stringify(state.values ?? {})}
+      action={action} className="space-y-4" noValidate>
       {state.error && <Notice tone="error">{state.error}</Notice>}
       {customer && <input type="hidden" name="customerId" value={customer.id} />}
       <Field label="Name" name="name" error={errors.name} hint="The brand owner as it appears on the order.">
