@@ -152,7 +152,7 @@ describe("jobs workspace in the browser", () => {
     await picture.waitFor({ timeout: 60_000 });
     await page.getByRole("img", { name: "Page 1 of artwork revision 1" }).waitFor();
     await page.waitForFunction(() => ((document.querySelector("img[alt^='Page 1 of artwork']") as HTMLImageElement | null)?.naturalWidth ?? 0) > 0, null, { timeout: 30_000 });
-    // The keyboard way: add an area and type its millimetres (inside up 1 of 105 × 148 mm).
+    // Typed in millimetres, inside up 1 of 105 × 148 mm.
     await page.getByRole("button", { name: "Add area" }).click();
     await page.getByText("Not saved yet").waitFor();
     await page.getByLabel("Area 1: label").fill("lot and best before");
