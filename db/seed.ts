@@ -11,6 +11,12 @@ export const DEMO_PASSWORD = "tympan-demo";
 
 export const DEMO_CUSTOMERS = ["Kestrelmoor Tea Company", "Alverin Generics Ltd."] as const;
 
+/** Who each customer wants told of sign-offs (invented addresses). */
+const DEMO_CONTACTS: Record<(typeof DEMO_CUSTOMERS)[number], string[]> = {
+  "Kestrelmoor Tea Company": ["buyer@kestrelmoor.example", "packaging@kestrelmoor.example"],
+  "Alverin Generics Ltd.": ["quality@alverin.example", "artwork.control@alverin.example"],
+};
+
 export const DEMO_USERS: { email: string; name: string; role: Role; customer?: (typeof DEMO_CUSTOMERS)[number] }[] = [
   { email: "admin@wrenfold.example", name: "Ada Penrose", role: "admin" },
   { email: "prepress@wrenfold.example", name: "Tomas Reyne", role: "prepress" },
@@ -21,10 +27,10 @@ export const DEMO_USERS: { email: string; name: string; role: Role; customer?: (
 ];
 
 const DEMO_JOBS = [
-  { jobNumber: "WF-24117", customer: "Kestrelmoor Tea Company", title: "Breakfast Blend 40 bags, carton", stock: "GC1 folding boxboard 300 g/m²", press: "Sheet-fed offset, 6 colours + coater", status: "on_press", upsRows: 2, upsColumns: 4 },
-  { jobNumber: "WF-24118", customer: "Kestrelmoor Tea Company", title: "Moorland Earl Grey 20 bags, carton", stock: "GC1 folding boxboard 300 g/m²", press: "Sheet-fed offset, 6 colours + coater", status: "prepress", upsRows: 2, upsColumns: 3 },
-  { jobNumber: "WF-24121", customer: "Alverin Generics Ltd.", title: "Paracetamol 500 mg, 16 tablets, carton", stock: "GD2 folding boxboard 280 g/m²", press: "Sheet-fed offset, 5 colours", status: "on_press", upsRows: 3, upsColumns: 5 },
-  { jobNumber: "WF-24122", customer: "Alverin Generics Ltd.", title: "Ibuprofen 200 mg, 24 tablets, carton", stock: "GD2 folding boxboard 280 g/m²", press: "Sheet-fed offset, 5 colours", status: "completed", upsRows: 3, upsColumns: 4 },
+  { jobNumber: "WF-24117", customer: "Kestrelmoor Tea Company", title: "Breakfast Blend 40 bags, carton", stock: "GC1 folding boxboard 300 g/m²", boardThicknessUm: 450, press: "Sheet-fed offset, 6 colours + coater", runLengthSheets: 18000, status: "on_press", upsRows: 2, upsColumns: 4, profile: "standard-food" },
+  { jobNumber: "WF-24118", customer: "Kestrelmoor Tea Company", title: "Moorland Earl Grey 20 bags, carton", stock: "GC1 folding boxboard 300 g/m²", boardThicknessUm: 450, press: "Sheet-fed offset, 6 colours + coater", runLengthSheets: null, status: "prepress", upsRows: 2, upsColumns: 3, profile: "standard-food" },
+  { jobNumber: "WF-24121", customer: "Alverin Generics Ltd.", title: "Paracetamol 500 mg, 16 tablets, carton", stock: "GD2 folding boxboard 280 g/m²", boardThicknessUm: 390, press: "Sheet-fed offset, 5 colours", runLengthSheets: 42000, status: "on_press", upsRows: 3, upsColumns: 5, profile: "strict-pharma" },
+  { jobNumber: "WF-24122", customer: "Alverin Generics Ltd.", title: "Ibuprofen 200 mg, 24 tablets, carton", stock: "GD2 folding boxboard 280 g/m²", boardThicknessUm: 390, press: "Sheet-fed offset, 5 colours", runLengthSheets: 30000, status: "completed", upsRows: 3, upsColumns: 4, profile: "strict-pharma" },
 ] as const;
 
 interface ProfileSeed {
@@ -72,7 +78,8 @@ export async function seedTolerances(): Promise<void> {
 export async function seedDemo(): Promise<void> {
   await seedTolerances();
   for (const name of DEMO_CUSTOMERS) {
-    await db.insert(customers).values({ name }).onDuplicateKeyUpdate({ set: { name } });
+    const contactEmails = DEMO_CONTACTS[name];
+    await db.insert(customers).values({ name, contactEmails }).onDuplicateKeyUpdate({ set: { name, contactEmails } });
   }
   const customerRows = await db.select().from(customers).where(inArray(customers.name, [...DEMO_CUSTOMERS]));
   const customerId = (name: string) => customerRows.find((c) => c.name === name)!.id;
@@ -84,8 +91,10 @@ export async function seedDemo(): Promise<void> {
   }
   const [admin] = await db.select({ id: users.id }).from(users).where(eq(users.email, DEMO_USERS[0].email));
 
-  for (const { customer, ...job } of DEMO_JOBS) {
-    const values = { ...job, customerId: customerId(customer), artworkDpi: 300 };
+  const profileRows = await db.select({ id: toleranceProfiles.id, name: toleranceProfiles.name }).from(toleranceProfiles);
+  for (const { customer, profile, ...job } of DEMO_JOBS) {
+    const toleranceProfileId = profileRows.find((p) => p.name === profile)?.id ?? null;
+    const values = { ...job, customerId: customerId(customer), artworkDpi: 300, toleranceProfileId };
     await db.insert(jobs).values({ ...values, createdBy: admin.id }).onDuplicateKeyUpdate({ set: values });
   }
 }

@@ -82,7 +82,7 @@ export function JobDetails({ jobId }: { jobId: number }) {
         <Fact label="Press">{job.press || "—"}</Fact>
         <Fact label="Run length">{job.runLengthSheets === null ? "Not known yet" : `${job.runLengthSheets.toLocaleString("en-GB")} sheets`}</Fact>
         <Fact label="Ups">
-          {job.upsRows * job.upsColumns} ({job.upsRows} rows × {job.upsColumns} columns)
+          {job.upsRows * job.upsColumns} ({job.upsRows} row{job.upsRows === 1 ? "" : "s"} × {job.upsColumns} column{job.upsColumns === 1 ? "" : "s"})
         </Fact>
         <Fact label="Tolerance profile">{job.toleranceProfileLabel ?? "The plant's default"}</Fact>
         <Fact label="Updated">

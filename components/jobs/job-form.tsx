@@ -26,7 +26,10 @@ export function JobForm({ job, options }: { job?: JobDetail; options: Options })
   const [thickness, setThickness] = useState(value("boardThicknessMm", job?.boardThicknessMm));
   const thick = Number(thickness.replace(",", ".")) > BOARD_THICKNESS_MM.usualMax;
   return (
-    <form action={action} className="space-y-6" noValidate>
+    <form
+      // React resets a form after its action; a fresh form takes the echoed values (selects included) as defaults.
+      key={JSON.stringify(state.values ?? {})}
+      action={action} className="space-y-6" noValidate>
       {state.error && <Notice tone="error">{state.error}</Notice>}
       {job && <input type="hidden" name="jobId" value={job.id} />}
       <fieldset className="grid gap-4 sm:grid-cols-2">

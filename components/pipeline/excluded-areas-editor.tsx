@@ -1,8 +1,8 @@
 "use client";
-// Excluded areas of one artwork revision, drawn on a picture of its page: drag to draw a rectangle, or add one
-// and type its millimetres. "In every up" areas are measured from the up's top-left and drawn in every up.
+// Excluded areas of one artwork revision, shown on a picture of its page as they are typed in millimetres
+// (drawing them with the pointer is not there yet). "In every up" areas are measured from the up's top-left and drawn in every up.
 // Editable while the revision is a draft; locked once approved.
-import { useEffect, useRef, useState } from "react";
+import { useEffect, useState } from "react";
 import { inputClass, quietButtonClass, buttonClass } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import type { ExcludedArea } from "@/db/schema";
@@ -10,8 +10,6 @@ import { expandExcludedAreas, upRect } from "@/lib/pipeline/excluded-areas";
 import type { RevisionView } from "@/lib/pipeline/view";
 import { errorMessageOf } from "./send-form";
 
-const round1 = (v: number) => Math.round(v * 10) / 10;
-const MIN_DRAG_MM = 0.5;
 
 function PagePicture({ revision, onLoaded }: { revision: RevisionView; onLoaded: () => void }) {
   const [attempt, setAttempt] = useState(0);
@@ -42,12 +40,9 @@ function PagePicture({ revision, onLoaded }: { revision: RevisionView; onLoaded:
 
 export function ExcludedAreasEditor({ revision, editable, refresh }: { revision: RevisionView; editable: boolean; refresh: () => void }) {
   const [areas, setAreas] = useState<ExcludedArea[]>(revision.excludedAreas);
-  const [scope, setScope] = useState<ExcludedArea["scope"]>("up");
-  const [drag, setDrag] = useState<{ x0: number; y0: number; x1: number; y1: number } | null>(null);
   const [saving, setSaving] = useState(false);
   const [loaded, setLoaded] = useState(false);
   const [notice, setNotice] = useState<{ tone: "ok" | "error"; text: string } | null>(null);
-  const svg = useRef<SVGSVGElement>(null);
   const saved = JSON.stringify(revision.excludedAreas);
   const [base, setBase] = useState(saved);
   if (base !== saved) {
@@ -70,30 +65,6 @@ export function ExcludedAreasEditor({ revision, editable, refresh }: { revision:
   const ups = { rows: revision.upsRows, columns: revision.upsColumns, areaMm: revision.upsAreaMm ?? undefined };
   const cells = Array.from({ length: ups.rows * ups.columns }, (_, i) => upRect(ups, page, Math.floor(i / ups.columns), i % ups.columns));
 
-  const toMm = (e: React.PointerEvent) => {
-    const box = svg.current!.getBoundingClientRect();
-    return { x: Math.min(W, Math.max(0, ((e.clientX - box.left) / box.width) * W)), y: Math.min(H, Math.max(0, ((e.clientY - box.top) / box.height) * H)) };
-  };
-  const finishDrag = () => {
-    if (!drag) return;
-    setDrag(null);
-    let x = Math.min(drag.x0, drag.x1);
-    let y = Math.min(drag.y0, drag.y1);
-    let w = Math.abs(drag.x1 - drag.x0);
-    let h = Math.abs(drag.y1 - drag.y0);
-    if (w < MIN_DRAG_MM || h < MIN_DRAG_MM) return;
-    if (scope === "up") {
-      // Measured from the top-left of the up the drag started in, kept inside that up.
-      const cell = cells.find((c) => drag.x0 >= c.x && drag.x0 <= c.x + c.w && drag.y0 >= c.y && drag.y0 <= c.y + c.h) ?? cells[0];
-      x -= cell.x;
-      y -= cell.y;
-      w = Math.min(w, cell.w - Math.max(0, x));
-      h = Math.min(h, cell.h - Math.max(0, y));
-      x = Math.max(0, x);
-      y = Math.max(0, y);
-    }
-    setAreas((list) => [...list, { scope, label: "", x: round1(x), y: round1(y), w: round1(w), h: round1(h) }]);
-  };
   const change = (i: number, patch: Partial<ExcludedArea>) => setAreas((list) => list.map((a, j) => (j === i ? { ...a, ...patch } : a)));
 
   async function save() {
@@ -109,43 +80,20 @@ export function ExcludedAreasEditor({ revision, editable, refresh }: { revision:
   }
 
   const shown = expandExcludedAreas(areas, ups, page);
-  const dragRect = drag && { x: Math.min(drag.x0, drag.x1), y: Math.min(drag.y0, drag.y1), w: Math.abs(drag.x1 - drag.x0), h: Math.abs(drag.y1 - drag.y0) };
   const stroke = Math.max(W, H) / 400;
   return (
     <div className="space-y-3">
       <div className="grid gap-4 lg:grid-cols-[minmax(0,3fr)_minmax(0,2fr)]">
         <div className="space-y-2">
-          {editable && (
-            <fieldset className="flex flex-wrap items-center gap-4 text-sm">
-              <legend className="sr-only">What a drawn area covers</legend>
-              <span className="text-ink-muted">Drag on the page to draw an area</span>
-              {(["up", "sheet"] as const).map((s) => (
-                <label key={s} className="inline-flex items-center gap-1.5">
-                  <input type="radio" name={`scope-${revision.id}`} value={s} checked={scope === s} onChange={() => setScope(s)} />
-                  {s === "up" ? "in every up" : "on the sheet only"}
-                </label>
-              ))}
-            </fieldset>
-          )}
           <div className="relative w-full overflow-hidden rounded-md border border-rule bg-paper" style={{ aspectRatio: `${W} / ${H}` }}>
             <PagePicture revision={revision} onLoaded={() => setLoaded(true)} />
             {!loaded && <p className="absolute inset-x-0 top-1/2 text-center text-xs text-ink-muted">Loading the page picture…</p>}
             <svg
-              ref={svg}
               viewBox={`0 0 ${W} ${H}`}
               preserveAspectRatio="none"
-              className={`absolute inset-0 h-full w-full ${editable ? "cursor-crosshair touch-none" : ""}`}
+              className="absolute inset-0 h-full w-full"
               role="img"
               aria-label={`Page ${W} × ${H} mm with ${ups.rows * ups.columns} ups and ${areas.length} excluded areas`}
-              onPointerDown={(e) => {
-                if (!editable) return;
-                (e.target as Element).setPointerCapture?.(e.pointerId);
-                const p = toMm(e);
-                setDrag({ x0: p.x, y0: p.y, x1: p.x, y1: p.y });
-              }}
-              onPointerMove={(e) => drag && setDrag({ ...drag, ...(() => { const p = toMm(e); return { x1: p.x, y1: p.y }; })() })}
-              onPointerUp={finishDrag}
-              onPointerCancel={() => setDrag(null)}
             >
               {cells.length > 1 &&
                 cells.map((c, i) => (
@@ -159,7 +107,6 @@ export function ExcludedAreasEditor({ revision, editable, refresh }: { revision:
               {shown.map((r, i) => (
                 <rect key={i} x={r.x} y={r.y} width={r.w} height={r.h} fill="#8a5a00" fillOpacity={0.25} stroke="#8a5a00" strokeWidth={stroke} />
               ))}
-              {dragRect && <rect x={dragRect.x} y={dragRect.y} width={dragRect.w} height={dragRect.h} fill="#0e5e63" fillOpacity={0.2} stroke="#0e5e63" strokeWidth={stroke} />}
             </svg>
           </div>
           <p className="text-xs text-ink-muted">
@@ -169,7 +116,7 @@ export function ExcludedAreasEditor({ revision, editable, refresh }: { revision:
         <div className="space-y-3">
           <h4 className="text-sm font-semibold">Excluded areas {editable ? "" : "(locked with the approval)"}</h4>
           {areas.length === 0 ? (
-            <p className="text-sm text-ink-muted">{editable ? "None yet. Draw one on the page, or add one and type its position." : "None: the whole page was compared."}</p>
+            <p className="text-sm text-ink-muted">{editable ? "None yet. Add one and type its position; it appears on the page." : "None: the whole page was compared."}</p>
           ) : (
             <ol className="space-y-3">
               {areas.map((a, i) => (

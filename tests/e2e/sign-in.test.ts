@@ -76,7 +76,9 @@ describe("in the browser", () => {
       await page.setViewportSize(viewport);
       await signIn(page, buyer.email, PASSWORD);
       await page.waitForURL(`${APP_URL}/`);
-      await page.getByRole("heading", { name: "Jobs" }).waitFor();
+      await page.getByRole("heading", { name: "Jobs", exact: true }).waitFor();
+      // The jobs table is fetched by the page after it loads.
+      await page.getByRole("link", { name: ownJob.jobNumber, exact: true }).waitFor();
       await expect(page.getByRole("link", { name: ownJob.jobNumber, exact: true }).count()).resolves.toBe(1);
       await expect(page.getByText(otherJob.jobNumber).count()).resolves.toBe(0);
       await expect(page.getByText("a spectrophotometer decides").count()).resolves.toBeGreaterThan(0);
