@@ -42,7 +42,8 @@ function Workspace({ initial }: { initial: SheetView }) {
 
   const afterDecision = useCallback(
     async (advance: boolean) => {
-      const fresh = await client.fetchQuery({ queryKey: key, queryFn: () => fetchSheet(initial.inspectionId) });
+      // staleTime 0: the list must show this decision even right after the previous one.
+      const fresh = await client.fetchQuery({ queryKey: key, queryFn: () => fetchSheet(initial.inspectionId), staleTime: 0 });
       if (!advance) return;
       const after = fresh.findings.findIndex((f) => f.id === selectedId);
       const next = [...fresh.findings.slice(after + 1), ...fresh.findings.slice(0, after)].find((f) => f.decision === "pending");
@@ -139,7 +140,7 @@ function Placeholder({ text, busy = false }: { text: string; busy?: boolean }) {
 }
 
 export function SheetWorkspace({ initial }: { initial: SheetView }) {
-  const [client] = useState(() => new QueryClient({ defaultOptions: { queries: { staleTime: 1000, retry: 2 } } }));
+  const [client] = useState(() => new QueryClient({ defaultOptions: { queries: { staleTime: 1000, retry: 2, refetchOnWindowFocus: false } } }));
   return (
     <QueryClientProvider client={client}>
       <Workspace initial={initial} />
