@@ -4,7 +4,7 @@
 import { useSyncExternalStore } from "react";
 
 export function formatLocal(iso: string): string {
-  return new Intl.DateTimeFormat(undefined, { dateStyle: "medium", timeStyle: "short", timeZoneName: "short" }).format(new Date(iso));
+  return new Intl.DateTimeFormat(undefined, { year: "numeric", month: "short", day: "numeric", hour: "2-digit", minute: "2-digit", timeZoneName: "short" }).format(new Date(iso));
 }
 
 const noSubscription = () => () => undefined;
