@@ -26,7 +26,13 @@ export interface CoarseResult {
   score: number;
   /** Best score of another placement (another local maximum away from the peak) at the same angle. */
   runnerUp: number;
+  /** Other placements at the same angle (local maxima away from the peak) scoring within ALTERNATIVE_GAP of it, best first. */
+  alternatives: { map: Affine; score: number }[];
 }
+
+/** Other local maxima kept as alternative placements when they score within this of the best (at most MAX_ALTERNATIVES). */
+const ALTERNATIVE_GAP = 0.1;
+const MAX_ALTERNATIVES = 6;
 
 /** Angles of the sweep, on the level twice coarser, about each quarter turn. */
 const SWEEP = [-6, -3, 0, 3, 6];
@@ -127,8 +133,9 @@ function candidate(
     const templ = keep(warp(cv, artMat, m, tw, th, lid));
     const px = Math.max(0, tw - scan.width) + Math.ceil(0.05 * tw) + 2;
     const py = Math.max(0, th - scan.height) + Math.ceil(0.05 * th) + 2;
-    const { x, y, score, runnerUp } = match(cv, keep, scanMat, templ, px, py);
-    return { map: translate(m, x - px, y - py), angleDeg: deg, score, runnerUp };
+    const { x, y, score, runnerUp, others } = match(cv, keep, scanMat, templ, px, py);
+    const alternatives = others.map((o) => ({ map: translate(m, o.x - px, o.y - py), score: o.score }));
+    return { map: translate(m, x - px, y - py), angleDeg: deg, score, runnerUp, alternatives };
   }
   // Scan, turned back, sought in the artwork padded with lid colour on every side.
   const back = invert(turn);
@@ -138,8 +145,9 @@ function candidate(
   const templ = keep(warp(cv, scanMat, n, tw, th, lid));
   const px = Math.max(0, tw - art.width) + Math.ceil(0.3 * tw) + 2;
   const py = Math.max(0, th - art.height) + Math.ceil(0.3 * th) + 2;
-  const { x, y, score, runnerUp } = match(cv, keep, artMat, templ, px, py, lid);
-  return { map: invert(translate(n, x - px, y - py)), angleDeg: deg, score, runnerUp };
+  const { x, y, score, runnerUp, others } = match(cv, keep, artMat, templ, px, py, lid);
+  const alternatives = others.map((o) => ({ map: invert(translate(n, o.x - px, o.y - py)), score: o.score }));
+  return { map: invert(translate(n, x - px, y - py)), angleDeg: deg, score, runnerUp, alternatives };
 }
 
 function warp(cv: OpenCv, src: unknown, m: Affine, w: number, h: number, fill: number) {
@@ -177,14 +185,26 @@ function match(
   // equally well (a window onto identical ups with no sheet edge or margin in it).
   const radius = Math.max(4, Math.round(0.06 * Math.min(templ.rows, templ.cols)));
   let runnerUp = -1;
+  let others: { x: number; y: number; score: number }[] = [];
   for (let y = 1; y < h - 1; y++) {
     for (let x = 1; x < w - 1; x++) {
       const v = r[y * w + x];
-      if (v <= runnerUp || Math.hypot(x - bx, y - by) <= radius) continue;
-      if (v >= r[y * w + x - 1] && v >= r[y * w + x + 1] && v >= r[(y - 1) * w + x] && v >= r[(y + 1) * w + x]) runnerUp = v;
+      if (Math.hypot(x - bx, y - by) <= radius) continue;
+      if (v >= r[y * w + x - 1] && v >= r[y * w + x + 1] && v >= r[(y - 1) * w + x] && v >= r[(y + 1) * w + x]) {
+        if (v > runnerUp) runnerUp = v;
+        if (v >= r[bi] - ALTERNATIVE_GAP) others.push({ x, y, score: v });
+      }
     }
   }
-  return { x: bx + peak(at(bx - 1, by), r[bi], at(bx + 1, by)), y: by + peak(at(bx, by - 1), r[bi], at(bx, by + 1)), score: r[bi], runnerUp };
+  // One alternative per peak: drop local maxima within the radius of a better one.
+  others.sort((a, b) => b.score - a.score);
+  const kept: typeof others = [];
+  for (const o of others) {
+    if (kept.length >= MAX_ALTERNATIVES) break;
+    if (kept.every((k) => Math.hypot(k.x - o.x, k.y - o.y) > radius)) kept.push(o);
+  }
+  others = kept;
+  return { x: bx + peak(at(bx - 1, by), r[bi], at(bx + 1, by)), y: by + peak(at(bx, by - 1), r[bi], at(bx, by + 1)), score: r[bi], runnerUp, others };
 }
 
 /** Offset of a parabola's vertex through three equally spaced samples, within ±0.5. */

@@ -15,7 +15,7 @@
 //
 // The scan's resolution may differ from the artwork's: it enters as the nominal scale, and the fitted scale
 // is reported relative to it (1 = the sheet is scanned at its true size).
-import { coveredRect, compose, invert, scaling, translate, type Affine } from "./align-affine";
+import { apply, coveredRect, compose, invert, scaling, translate, type Affine } from "./align-affine";
 import { coarsePlacement } from "./align-coarse";
 import { localField } from "./align-field";
 import { refineOnPatches } from "./align-patches";
@@ -48,11 +48,15 @@ export interface AlignResult {
 const MIN_CORRELATION = 0.7;
 const MIN_AGREEMENT = 0.5;
 /**
- * A second placement scoring within this of the best means the scan fits two places: a window onto identical
- * ups with no sheet edge or margin in it. Measured: 0.0004–0.014 for such windows, ≥ 0.05 once a sheet edge
- * is in the window, and no second peak at all when the whole sheet is on the glass.
+ * Coarse placements scoring within AMBIGUITY_SEARCH of the best are fitted too (a window onto identical ups:
+ * on the ~4 000-pixel level a margin or crop mark is a pixel or less, and the sampling phase alone moved the
+ * scores of equal windows by up to 0.03). A second fit whose finer-level correlation comes within
+ * AMBIGUITY_RHO_GAP of the best means the scan fits two places. Measured on windows onto a 15-up sheet at
+ * 100 dpi: 0.0002–0.0007 between placements one up apart along a sheet edge or with no edge in view (truly
+ * ambiguous), 0.0097 for a window that held the sheet's corner, whose coarse scores lay within 0.01 of each other.
  */
-const AMBIGUITY_GAP = 0.025;
+const AMBIGUITY_SEARCH = 0.1;
+const AMBIGUITY_RHO_GAP = 0.002;
 /** Grey-level standard deviation (0–255) under which the scan shows nothing printed. */
 const MIN_SCAN_CONTRAST = 2;
 /** Pixels of the coarse level (the placement; the rotation sweep runs on a level with a quarter as many). */
@@ -97,8 +101,30 @@ export async function alignScan(artwork: ArtworkRaster, scan: ScanImage, opts: A
   // its third iteration leaves the patches' first offsets as small as its thirtieth did (measured: medians
   // ≤ 0.37 px at 100 dpi over all quarter turns ±7°); without it they were ~4 px, near the patches' radius.
   const nominal = scan.dpi / artwork.dpi;
-  map = ecc(cv, artC, scanC, map, nominal, 50).map;
-  const { map: eccMap, rho } = ecc(cv, artE, scanE, map, nominal, 3);
+  const fitEcc = (start: Affine) => {
+    const m = ecc(cv, artC, scanC, start, nominal, 50).map;
+    return ecc(cv, artE, scanE, m, nominal, 3);
+  };
+  const first = fitEcc(map);
+  let { map: eccMap, rho } = first;
+  // Other placements the coarse level found nearly as good (a window onto repeated ups): each is fitted as
+  // the first was, and the finer level's correlation chooses; two that fit alike mean the scan cannot be placed.
+  let runnerRho = -1;
+  for (const alt of coarse.alternatives) {
+    if (alt.score < coarse.score - AMBIGUITY_SEARCH) continue;
+    let fit: { map: Affine; rho: number };
+    try {
+      fit = fitEcc(levelMapToFull(alt.map, artC.k, scanC.k));
+    } catch (e) {
+      if (e instanceof ImagingError) continue;
+      throw e;
+    }
+    if (samePlace(fit.map, eccMap, artwork, scan)) continue;
+    if (fit.rho > rho) {
+      runnerRho = Math.max(runnerRho, rho);
+      ({ map: eccMap, rho } = fit);
+    } else runnerRho = Math.max(runnerRho, fit.rho);
+  }
   map = eccMap;
   lap("ecc");
   if (!(rho >= MIN_CORRELATION)) throw mismatch();
@@ -108,7 +134,7 @@ export async function alignScan(artwork: ArtworkRaster, scan: ScanImage, opts: A
   lap("patches");
   if (refined.agreement !== null && refined.agreement < MIN_AGREEMENT) throw mismatch();
   // Only a scan that matches is worth this question: it fits, but would it fit elsewhere as well?
-  if (coarse.runnerUp > coarse.score - AMBIGUITY_GAP) {
+  if (runnerRho > rho - AMBIGUITY_RHO_GAP) {
     throw new ImagingError("scan_ambiguous", "the scan shows only repeated parts of the sheet and cannot be placed; include a sheet edge or margin in the scan");
   }
 
@@ -181,6 +207,13 @@ function ecc(cv: OpenCv, art: GreyLevel, scan: GreyLevel, map: Affine, nominal: 
     if (!found.every(Number.isFinite) || !(det > 0) || Math.abs(Math.sqrt(det) / nominal - 1) > 0.1) throw mismatch();
     return { map: found, rho };
   });
+}
+
+/** Two maps place the scan alike when the scan's centre lands within a few artwork pixels under both. */
+function samePlace(a: Affine, b: Affine, artwork: ArtworkRaster, scan: ScanImage): boolean {
+  const cx = scan.width / 2, cy = scan.height / 2;
+  const pa = apply(invert(a), cx, cy), pb = apply(invert(b), cx, cy);
+  return Math.hypot(pa[0] - pb[0], pa[1] - pb[1]) < Math.max(3, artwork.dpi / 25.4);
 }
 
 function levelMapToFull(m: Affine, kArt: number, kScan: number): Affine {

@@ -150,6 +150,20 @@ describe("alignScan on a 15-up sheet of identical ups", () => {
     expectAccurate(alignment, sim, fifteenUp, o, truth);
   });
 
+  it("places a window that holds the sheet's corner even where the coarse level scores placements one up apart alike", async () => {
+    // Before the finer level chose between them, this window (corner 1.5 mm from the scan's top) was refused as
+    // scan_ambiguous: its coarse scores for the right place and for one up off lay within 0.01.
+    const o: GlassOptions = { rotationDeg: 0.5, sizeMm: { w: 180, h: 200 }, centreMm: { x: 215, y: 150 } };
+    const { sim, alignment } = await alignCase(fifteenUp, o);
+    const truth = pxRectToMm(coveredRect(sim.artworkToScan, fifteenUp.width, fifteenUp.height, sim.scan.width, sim.scan.height)!, DPI);
+    expectAccurate(alignment, sim, fifteenUp, o, truth);
+  });
+
+  it("refuses a window along the top edge only, where the ups repeat sideways", async () => {
+    const { scan } = placeOnGlass(fifteenUp, { rotationDeg: 0.5, sizeMm: { w: 200, h: 220 }, centreMm: { x: 100, y: 170 } });
+    await expect(alignScan(fifteenUp, scan)).rejects.toMatchObject({ code: "scan_ambiguous" });
+  });
+
   it("refuses to guess where a window onto identical ups only, with no edge or margin, belongs", async () => {
     const { scan } = placeOnGlass(fifteenUp, { rotationDeg: 0.5, sizeMm: { w: 150, h: 150 }, centreMm: { x: 130, y: 100 } });
     await expect(alignScan(fifteenUp, scan)).rejects.toMatchObject({ code: "scan_ambiguous" });
