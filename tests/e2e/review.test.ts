@@ -156,7 +156,7 @@ describe("reviewing a sheet in the browser", () => {
     await page.goto(sheetUrl());
     await page.getByText("Sheet signed failed").waitFor();
     await viewerReady(page);
-    expect(await page.getByRole("button", { name: /^Accept|^Reject|^Undo|^Sign|^Reopen/ }).count()).toBe(0);
+    expect(await page.getByRole("button", { name: /^Accept|^Reject|^Undo|^Sign sheet|^Reopen/ }).count()).toBe(0);
     expect(await page.locator("textarea, input[type=password]").count()).toBe(0);
     expect(await seriousViolations(page)).toEqual([]);
     await shoot(page, "6-customer");
