@@ -21,7 +21,7 @@ import { makeFixture, multipart, until, type Fixture } from "./support/fixtures"
 import { emptyQueues, startWorker, type WorkerProcess } from "./support/worker-process";
 
 let actor: Actor;
-vi.mock("@/lib/auth/session", () => ({ actorOrThrow: async () => actor }));
+vi.mock("@/lib/auth/request-actor", () => ({ requestActor: async () => actor }));
 const { POST: postArtwork } = await import("@/app/api/jobs/[jobId]/artworks/route");
 const { POST: postScans } = await import("@/app/api/jobs/[jobId]/scans/route");
 const { POST: approve } = await import("@/app/api/artworks/[revisionId]/approve/route");
