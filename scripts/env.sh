@@ -1,5 +1,8 @@
 # Shared by scripts/*.sh: repository root, .env loading (never overriding what the caller set), helpers.
 export NEXT_TELEMETRY_DISABLED=1
+# The product's owners fix Node.js 20; the AWS SDK's notice about its future Node 22 floor repeats in every process
+# and nobody running Tympan can act on it (the locked SDK version runs on 20).
+export AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED="${AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED:-true}"
 ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
 
 load_dotenv() {

@@ -65,7 +65,8 @@ describe("bad input", () => {
 
   it("path ids: anything but a known id is a 404", async () => {
     await fc.assert(
-      fc.asyncProperty(nasty, async (id) => {
+      // A random short string of digits may be a real id ("1" is the first job), so those are left out.
+      fc.asyncProperty(nasty.filter((id) => !/^\s*0*[1-9]\d{0,8}\s*$/.test(id)), async (id) => {
         await expectClear4xx(await call(getJob as Handler, { path: "/x", params: { jobId: id }, headers: auth }), [404]);
         await expectClear4xx(await call(getInspection as Handler, { path: "/x", params: { inspectionId: id }, headers: auth }), [404]);
         await expectClear4xx(await call(approve as Handler, { method: "POST", path: "/x", params: { revisionId: id }, headers: auth }), [404]);
