@@ -3,9 +3,10 @@
 // then compare the core. Full-width bands of this keep memory bounded on a B1 sheet at 300 dpi.
 import { warpScanToArtwork } from "./align";
 import { WarpBuffers } from "./align-warp";
-import { compareBand, CompareScratch, type BandDifference } from "./compare";
+import { compareBand, CompareScratch, type BandDifference, type EdgeSample } from "./compare";
 import { lowPassRgb, mapColours, type ColourModel } from "./normalise";
 import { preparedRect, type ContrastWindows } from "./prepared";
+import { removeLightField, type LightField } from "./light-field";
 import { intersect, type PxRect } from "./raster";
 import type { Alignment, RgbaImage } from "./types";
 
@@ -47,12 +48,16 @@ export interface SheetContext {
   artwork: RgbaImage;
   source: AlignedScanSource;
   model: ColourModel;
+  /** The scanner's light across the page, divided out after the colour model. */
+  light: LightField | null;
   sigmaPx: number;
   radiusPx: number;
   /** Windows of the artwork's local contrast (prepared.ts). */
   windows: ContrastWindows;
   lowDeltaE00: number;
   peakDeltaE00: number;
+  /** The sheet's edge allowance (edge-allowance.ts); compare.ts's default when absent. */
+  edgeAllowance?: number;
   /** Inspected part of the page (covered by the scan), px. */
   inspectPx: PxRect;
   /** Excluded rectangles, px. */
@@ -72,7 +77,7 @@ export function haloPx(ctx: SheetContext): number {
   return Math.ceil(3 * ctx.sigmaPx) + ctx.radiusPx + Math.ceil(2 * ctx.sigmaPx) + 1;
 }
 
-export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = false): Promise<RectDifference> {
+export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = false, edgeSample?: EdgeSample): Promise<RectDifference> {
   const art = ctx.artwork;
   const halo = haloPx(ctx);
   const started = performance.now();
@@ -91,6 +96,7 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
   ctx.passes.lowPass += lowPassed - warped;
   const scanNormal = ctx.scratch.normalisedScan(ext.w * ext.h * 4);
   mapColours(ctx.model, scanLow, 3, scanNormal);
+  if (ctx.light) removeLightField(ctx.light, scanNormal, ext.w, ext.h, ext.x, ext.y);
   ctx.passes.colourMap += performance.now() - lowPassed;
   const inspect = inspectMask(ctx, core, ext, scanPatch.mask, Math.ceil(2 * ctx.sigmaPx) + 1);
   const mid = performance.now();
@@ -105,7 +111,7 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
   }
   const diff = compareBand(
     { width: ext.w, rows: ext.h, art: artPrepared, scan: scanNormal, coreY, coreRows: core.h, inspect: wideInspect },
-    { lowDeltaE00: ctx.lowDeltaE00, peakDeltaE00: ctx.peakDeltaE00, radiusPx: ctx.radiusPx, everyPixel },
+    { lowDeltaE00: ctx.lowDeltaE00, peakDeltaE00: ctx.peakDeltaE00, radiusPx: ctx.radiusPx, everyPixel, edgeAllowance: ctx.edgeAllowance, edgeSample },
     ctx.scratch,
   );
   const compared = performance.now() - mid;

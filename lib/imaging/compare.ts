@@ -25,7 +25,7 @@ const DE00_OVER_DEAB = 1.4;
  * edges, scanner optics, JPEG chroma subsampling and the colour model's error on blended colours leave
  * 5–15 % of the edge contrast; a missing or extra stroke differs by about the whole contrast.
  */
-const EDGE_ALLOWANCE = 0.15;
+export const EDGE_ALLOWANCE = 0.15;
 /**
  * The same for a sideways move in colour (hue or chroma at the same ink): along edges that is what JPEG's
  * subsampled chroma and a scanner's colour fringes produce, while a true colour shift sits in a flat area,
@@ -65,7 +65,23 @@ export interface CompareSettings {
   radiusPx: number;
   /** Compute the tolerant ΔE00 of every pixel (difference crops) instead of screening. */
   everyPixel?: boolean;
+  /** ΔE00 forgiven per unit of local contrast for ink (default EDGE_ALLOWANCE; edge-allowance.ts sets it per sheet). */
+  edgeAllowance?: number;
+  /** Filled with what each edge pixel would need forgiven (edge-allowance.ts), when given. */
+  edgeSample?: EdgeSample;
 }
+
+/** The edge pixels of some bands and the allowance each would need not to be flagged (edge-allowance.ts). */
+export interface EdgeSample {
+  /** Inspected pixels with local contrast ≥ EDGE_SAMPLE_MIN_CONTRAST. */
+  edgePixels: number;
+  /** Count by needed allowance, in steps of 1 / EDGE_SAMPLE_STEPS (the last bin holds all beyond). */
+  needed: Float64Array;
+}
+
+/** Local contrast (ΔE*ab) from which a pixel is an edge pixel of the sample: below, the screens skip pixels that could need more than EDGE_ALLOWANCE. */
+export const EDGE_SAMPLE_MIN_CONTRAST = 10;
+export const EDGE_SAMPLE_STEPS = 100;
 
 /** One band over the same rows of both images (core plus halo), full band width. */
 export interface BandPair {
@@ -211,6 +227,8 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
   const bound = (low / DE00_OVER_DEAB) ** 2;
   const peak = settings.peakDeltaE00;
   const inspect = band.inspect;
+  const edgeAllowance = settings.edgeAllowance ?? EDGE_ALLOWANCE;
+  const sample = settings.edgeSample;
   let flagged = 0;
   let candidates = 0;
   for (let cy = 0; cy < coreRows; cy++) {
@@ -218,6 +236,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
     const y0 = Math.max(0, y - r), y1 = Math.min(rows - 1, y + r);
     for (let x = 0; x < width; x++) {
       const i = cy * width + x;
+      if (sample && inspect[i] === 1 && contrastOf[y * width + x] >= EDGE_SAMPLE_MIN_CONTRAST) sample.edgePixels++;
       if (screen !== null) {
         if (screen[i * 4 + 3] === 0) continue;
         screen[i * 4 + 3] = 0;
@@ -238,7 +257,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       const contrast = contrastOf[pix];
       const nearType = lightGround[pix] === 1 && contrast >= STRUCTURAL_MIN_CONTRAST;
       const bleed = wideContrast[pix];
-      const inkAllowance = EDGE_ALLOWANCE * contrast + BLEED_ALLOWANCE_INK * bleed;
+      const inkAllowance = edgeAllowance * contrast + BLEED_ALLOWANCE_INK * bleed;
       const edgeFloor = low + inkAllowance;
       const floor = nearType ? Math.min(edgeFloor, peak + EDGE_ALLOWANCE_STRUCTURAL * contrast) : edgeFloor;
       if (DE00_OVER_DEAB * DE00_OVER_DEAB * direct < floor * floor && !everyPixel) continue;
@@ -263,6 +282,10 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       const e = e1 > e2 ? e1 : e2;
       if (e < low && !everyPixel) continue;
       const k = classify(al, aa, ab, sl, sa, sb);
+      if (sample && k !== PIXEL_COLOUR_SHIFT && contrast >= EDGE_SAMPLE_MIN_CONTRAST) {
+        const needed = (e - low - BLEED_ALLOWANCE_INK * bleed) / contrast;
+        if (needed > 0) sample.needed[Math.min(sample.needed.length - 1, Math.floor(needed * EDGE_SAMPLE_STEPS))]++;
+      }
       const s = e - (k === PIXEL_COLOUR_SHIFT ? EDGE_ALLOWANCE_COLOUR * contrast + BLEED_ALLOWANCE_COLOUR * bleed : inkAllowance);
       // Small print is dark type on a light ground (the ground's lightness dominates around it); in type
       // reversed out of a dark solid the scan's softness fills strokes in, which looks much like a change.

@@ -4,12 +4,13 @@
 import { alignScan } from "./align";
 import { alignedScanSource, borrowScratch, haloPx, processRect, returnScratch, type SheetContext } from "./bands";
 import { makeCrops } from "./crops";
+import { measureEdgeAllowance } from "./edge-allowance";
 import { RegionCollector, regionsToFindings } from "./findings";
 import { fitNormalisation, lowPassSigmaPx } from "./normalise";
 import { estimateOpticalBlur, OPTICAL_BLUR_STEPS_PX, suggestBlurStep } from "./optics";
 import { CACHE_MAX_PIXELS, preparedPageIfKept, adoptPrepared, type ContrastWindows, type PreparedRect, type PreparedRows } from "./prepared";
 import { validateProfile } from "./profiles";
-import { mmToPx, pxRectToMm, rectMmToPx, rectMmToPxInside } from "./raster";
+import { mmToPx, pxRectToMm, rectMmToPx, rectMmToPxInside, type PxRect } from "./raster";
 import {
   ImagingError,
   type Alignment,
@@ -103,7 +104,7 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
   const sigmaPx = lowPassSigmaPx(dpi);
   const radiusPx = Math.max(1, Math.ceil(mmToPx(profile.registrationToleranceMm, dpi) - 0.25));
   const peak = profile.deltaE00Threshold;
-  const inspectPx = rectMmToPxInside(alignment.coveredMm, dpi, artwork.width, artwork.height);
+  const inspectPx = awayFromPageEdge(rectMmToPxInside(alignment.coveredMm, dpi, artwork.width, artwork.height), artwork, Math.ceil(3 * sigmaPx) + radiusPx);
   started = performance.now();
   const fit = fitNormalisation(artwork, scan, alignment.artworkToScan, inspectPx, Math.ceil(2.5 * sigmaPx) + radiusPx);
   const fitted = performance.now();
@@ -129,6 +130,7 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
       artwork,
       source: alignedScanSource(scan, alignment, artwork, scratch.warp),
       model: fit.model,
+      light: fit.light,
       sigmaPx,
       radiusPx,
       windows,
@@ -140,6 +142,9 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
       timings: { normalise: 0, compare: 0 },
       passes: { warp: 0, lowPass: 0, colourMap: 0, screen: 0, cielab: 0 },
     };
+    const edge = await measureEdgeAllowance(ctx);
+    ctx.edgeAllowance = edge.allowance;
+    if (process.env.TYMPAN_DEBUG_EDGE) console.error("edge allowance", edge);
     findings = await compareSheet(ctx, artwork, profile, { ups, crops: input.crops ?? false }, timings, progress);
     Object.assign(passes, ctx.passes);
   } finally {
@@ -202,6 +207,17 @@ async function compareSheet(
   }
   timings.findings += performance.now() - started;
   return findings;
+}
+
+/**
+ * The inspected area kept `marginPx` clear of the page's own edges: the artwork ends at its trim box while the
+ * press sheet goes on (bleed, crop marks, the next up), so the two low-passes differ there along the whole edge.
+ */
+function awayFromPageEdge(r: PxRect, artwork: RgbaImage, marginPx: number): PxRect {
+  const x0 = r.x <= 0 ? marginPx : r.x, y0 = r.y <= 0 ? marginPx : r.y;
+  const x1 = r.x + r.w >= artwork.width ? artwork.width - marginPx : r.x + r.w;
+  const y1 = r.y + r.h >= artwork.height ? artwork.height - marginPx : r.y + r.h;
+  return { x: x0, y: y0, w: Math.max(0, x1 - x0), h: Math.max(0, y1 - y0) };
 }
 
 /** The alignment of a scan already in the artwork's pixel grid (same size and resolution). */
