@@ -3,7 +3,7 @@
 // then compare the core. Full-width bands of this keep memory bounded on a B1 sheet at 300 dpi.
 import { warpScanToArtwork } from "./align";
 import { WarpBuffers } from "./align-warp";
-import { compareBand, CompareScratch, type BandDifference, type EdgeSample } from "./compare";
+import { compareBand, CompareScratch, type BandDifference, type SheetSample } from "./compare";
 import { lowPassRgb, mapColours, type ColourModel } from "./normalise";
 import { preparedRect, type ContrastWindows } from "./prepared";
 import { removeLightField, type LightField } from "./light-field";
@@ -56,8 +56,9 @@ export interface SheetContext {
   windows: ContrastWindows;
   lowDeltaE00: number;
   peakDeltaE00: number;
-  /** The sheet's edge allowance (edge-allowance.ts); compare.ts's default when absent. */
+  /** The sheet's edge and flat-area allowances (allowances.ts); compare.ts's defaults when absent. */
   edgeAllowance?: number;
+  flatAllowance?: Float32Array;
   /** Inspected part of the page (covered by the scan), px. */
   inspectPx: PxRect;
   /** Excluded rectangles, px. */
@@ -77,7 +78,7 @@ export function haloPx(ctx: SheetContext): number {
   return Math.ceil(3 * ctx.sigmaPx) + ctx.radiusPx + Math.ceil(2 * ctx.sigmaPx) + 1;
 }
 
-export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = false, edgeSample?: EdgeSample): Promise<RectDifference> {
+export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = false, sample?: SheetSample): Promise<RectDifference> {
   const art = ctx.artwork;
   const halo = haloPx(ctx);
   const started = performance.now();
@@ -111,7 +112,7 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
   }
   const diff = compareBand(
     { width: ext.w, rows: ext.h, art: artPrepared, scan: scanNormal, coreY, coreRows: core.h, inspect: wideInspect },
-    { lowDeltaE00: ctx.lowDeltaE00, peakDeltaE00: ctx.peakDeltaE00, radiusPx: ctx.radiusPx, everyPixel, edgeAllowance: ctx.edgeAllowance, edgeSample },
+    { lowDeltaE00: ctx.lowDeltaE00, peakDeltaE00: ctx.peakDeltaE00, radiusPx: ctx.radiusPx, everyPixel, edgeAllowance: ctx.edgeAllowance, flatAllowance: ctx.flatAllowance, sample },
     ctx.scratch,
   );
   const compared = performance.now() - mid;

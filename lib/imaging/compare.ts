@@ -65,23 +65,50 @@ export interface CompareSettings {
   radiusPx: number;
   /** Compute the tolerant ΔE00 of every pixel (difference crops) instead of screening. */
   everyPixel?: boolean;
-  /** ΔE00 forgiven per unit of local contrast for ink (default EDGE_ALLOWANCE; edge-allowance.ts sets it per sheet). */
+  /** ΔE00 forgiven per unit of local contrast for ink (default EDGE_ALLOWANCE; allowances.ts sets it per sheet). */
   edgeAllowance?: number;
-  /** Filled with what each edge pixel would need forgiven (edge-allowance.ts), when given. */
-  edgeSample?: EdgeSample;
+  /** ΔE00 forgiven on flat areas, by the artwork's tone (TONE_BINS; allowances.ts): the scan's own noise there. */
+  flatAllowance?: Float32Array;
+  /** Filled with what each pixel would need forgiven (allowances.ts), when given. */
+  sample?: SheetSample;
 }
 
-/** The edge pixels of some bands and the allowance each would need not to be flagged (edge-allowance.ts). */
-export interface EdgeSample {
-  /** Inspected pixels with local contrast ≥ EDGE_SAMPLE_MIN_CONTRAST. */
+/** Of some bands: what each edge pixel, and each flat pixel by tone, would need forgiven not to be flagged. */
+export interface SheetSample {
+  /** Inspected pixels with local contrast ≥ EDGE_MIN_CONTRAST. */
   edgePixels: number;
-  /** Count by needed allowance, in steps of 1 / EDGE_SAMPLE_STEPS (the last bin holds all beyond). */
-  needed: Float64Array;
+  /** Edge pixels by allowance needed, in steps of 1 / EDGE_SAMPLE_STEPS (the last bin holds all beyond). */
+  edgeNeeded: Float64Array;
+  /** Inspected flat pixels (local contrast below EDGE_MIN_CONTRAST) by tone bin. */
+  flatPixels: Float64Array;
+  /** Flat pixels by tone bin (rows of FLAT_SAMPLE_STEPS + 1) and tolerant ΔE00, in steps of 1 / FLAT_SAMPLE_RESOLUTION. */
+  flatDeltaE: Float64Array;
 }
 
-/** Local contrast (ΔE*ab) from which a pixel is an edge pixel of the sample: below, the screens skip pixels that could need more than EDGE_ALLOWANCE. */
-export const EDGE_SAMPLE_MIN_CONTRAST = 10;
+/**
+ * Local contrast (ΔE*ab) from which a pixel is an edge pixel: below, its tolerance is the scan's noise on flat
+ * areas; at and above, the screens skip only pixels that could need less than EDGE_ALLOWANCE.
+ */
+export const EDGE_MIN_CONTRAST = 10;
 export const EDGE_SAMPLE_STEPS = 100;
+/** Tone bins of flat areas, by the artwork's low-passed luma (R + 2G + B) / 4: paper white apart from tints and solids. */
+export const TONE_BINS = 8;
+export const FLAT_SAMPLE_RESOLUTION = 10;
+export const FLAT_SAMPLE_STEPS = 300;
+
+export function newSheetSample(): SheetSample {
+  return {
+    edgePixels: 0,
+    edgeNeeded: new Float64Array(EDGE_SAMPLE_STEPS + 1),
+    flatPixels: new Float64Array(TONE_BINS),
+    flatDeltaE: new Float64Array(TONE_BINS * (FLAT_SAMPLE_STEPS + 1)),
+  };
+}
+
+function toneBin(rgba: Uint8Array, pix: number): number {
+  const o = pix * 4;
+  return ((rgba[o] + 2 * rgba[o + 1] + rgba[o + 2]) * TONE_BINS) >> 10;
+}
 
 /** One band over the same rows of both images (core plus halo), full band width. */
 export interface BandPair {
@@ -196,7 +223,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
   const coreStart = coreY * width * 4;
   let screen: Uint8Array | null = null;
   let screenMs = 0;
-  if (!settings.everyPixel) {
+  if (!settings.everyPixel && !settings.sample) {
     screen = scratch.screenBuffer(n * 4);
     // Set on the second level: a region is kept only for pixels that reach it, and set on the first the
     // screen would pass nearly every pixel of a noisy scan.
@@ -228,7 +255,8 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
   const peak = settings.peakDeltaE00;
   const inspect = band.inspect;
   const edgeAllowance = settings.edgeAllowance ?? EDGE_ALLOWANCE;
-  const sample = settings.edgeSample;
+  const sample = settings.sample;
+  const flatAllowance = settings.flatAllowance;
   let flagged = 0;
   let candidates = 0;
   for (let cy = 0; cy < coreRows; cy++) {
@@ -236,7 +264,11 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
     const y0 = Math.max(0, y - r), y1 = Math.min(rows - 1, y + r);
     for (let x = 0; x < width; x++) {
       const i = cy * width + x;
-      if (sample && inspect[i] === 1 && contrastOf[y * width + x] >= EDGE_SAMPLE_MIN_CONTRAST) sample.edgePixels++;
+      if (sample && inspect[i] === 1) {
+        const p = y * width + x;
+        if (contrastOf[p] >= EDGE_MIN_CONTRAST) sample.edgePixels++;
+        else sample.flatPixels[toneBin(artLow, p)]++;
+      }
       if (screen !== null) {
         if (screen[i * 4 + 3] === 0) continue;
         screen[i * 4 + 3] = 0;
@@ -257,8 +289,13 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       const contrast = contrastOf[pix];
       const nearType = lightGround[pix] === 1 && contrast >= STRUCTURAL_MIN_CONTRAST;
       const bleed = wideContrast[pix];
-      const inkAllowance = edgeAllowance * contrast + BLEED_ALLOWANCE_INK * bleed;
-      const edgeFloor = low + inkAllowance;
+      const flat = contrast < EDGE_MIN_CONTRAST;
+      const noise = flat && flatAllowance ? flatAllowance[toneBin(artLow, pix)] : 0;
+      // Flat noise is forgiven on ink only: a colour shift is judged over its whole area (findings.ts), where
+      // noise averages out, and it may fill most of a tone (a reprinted panel).
+      const inkAllowance = edgeAllowance * contrast + BLEED_ALLOWANCE_INK * bleed + noise;
+      const colourAllowance = EDGE_ALLOWANCE_COLOUR * contrast + BLEED_ALLOWANCE_COLOUR * bleed;
+      const edgeFloor = low + Math.min(inkAllowance, colourAllowance);
       const floor = nearType ? Math.min(edgeFloor, peak + EDGE_ALLOWANCE_STRUCTURAL * contrast) : edgeFloor;
       if (DE00_OVER_DEAB * DE00_OVER_DEAB * direct < floor * floor && !everyPixel) continue;
       const x0 = Math.max(0, x - r), x1 = Math.min(width - 1, x + r);
@@ -282,11 +319,13 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       const e = e1 > e2 ? e1 : e2;
       if (e < low && !everyPixel) continue;
       const k = classify(al, aa, ab, sl, sa, sb);
-      if (sample && k !== PIXEL_COLOUR_SHIFT && contrast >= EDGE_SAMPLE_MIN_CONTRAST) {
+      if (sample && flat) {
+        sample.flatDeltaE[toneBin(artLow, pix) * (FLAT_SAMPLE_STEPS + 1) + Math.min(FLAT_SAMPLE_STEPS, Math.floor(e * FLAT_SAMPLE_RESOLUTION))]++;
+      } else if (sample && k !== PIXEL_COLOUR_SHIFT) {
         const needed = (e - low - BLEED_ALLOWANCE_INK * bleed) / contrast;
-        if (needed > 0) sample.needed[Math.min(sample.needed.length - 1, Math.floor(needed * EDGE_SAMPLE_STEPS))]++;
+        if (needed > 0) sample.edgeNeeded[Math.min(EDGE_SAMPLE_STEPS, Math.floor(needed * EDGE_SAMPLE_STEPS))]++;
       }
-      const s = e - (k === PIXEL_COLOUR_SHIFT ? EDGE_ALLOWANCE_COLOUR * contrast + BLEED_ALLOWANCE_COLOUR * bleed : inkAllowance);
+      const s = e - (k === PIXEL_COLOUR_SHIFT ? colourAllowance : inkAllowance);
       // Small print is dark type on a light ground (the ground's lightness dominates around it); in type
       // reversed out of a dark solid the scan's softness fills strokes in, which looks much like a change.
       const structuralInk = k !== PIXEL_COLOUR_SHIFT && nearType && e - EDGE_ALLOWANCE_STRUCTURAL * contrast >= peak;

@@ -4,7 +4,7 @@
 import { alignScan } from "./align";
 import { alignedScanSource, borrowScratch, haloPx, processRect, returnScratch, type SheetContext } from "./bands";
 import { makeCrops } from "./crops";
-import { measureEdgeAllowance } from "./edge-allowance";
+import { measureAllowances } from "./allowances";
 import { RegionCollector, regionsToFindings } from "./findings";
 import { fitNormalisation, lowPassSigmaPx } from "./normalise";
 import { estimateOpticalBlur, OPTICAL_BLUR_STEPS_PX, suggestBlurStep } from "./optics";
@@ -142,9 +142,10 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
       timings: { normalise: 0, compare: 0 },
       passes: { warp: 0, lowPass: 0, colourMap: 0, screen: 0, cielab: 0 },
     };
-    const edge = await measureEdgeAllowance(ctx);
-    ctx.edgeAllowance = edge.allowance;
-    if (process.env.TYMPAN_DEBUG_EDGE) console.error("edge allowance", edge);
+    const allowances = await measureAllowances(ctx);
+    ctx.edgeAllowance = allowances.edge;
+    ctx.flatAllowance = allowances.flat;
+    if (process.env.TYMPAN_DEBUG_EDGE) console.error("allowances", allowances.edge, Array.from(allowances.flat).map((v) => v.toFixed(1)).join(" "));
     findings = await compareSheet(ctx, artwork, profile, { ups, crops: input.crops ?? false }, timings, progress);
     Object.assign(passes, ctx.passes);
   } finally {
@@ -214,9 +215,8 @@ async function compareSheet(
  * press sheet goes on (bleed, crop marks, the next up), so the two low-passes differ there along the whole edge.
  */
 function awayFromPageEdge(r: PxRect, artwork: RgbaImage, marginPx: number): PxRect {
-  const x0 = r.x <= 0 ? marginPx : r.x, y0 = r.y <= 0 ? marginPx : r.y;
-  const x1 = r.x + r.w >= artwork.width ? artwork.width - marginPx : r.x + r.w;
-  const y1 = r.y + r.h >= artwork.height ? artwork.height - marginPx : r.y + r.h;
+  const x0 = Math.max(r.x, marginPx), y0 = Math.max(r.y, marginPx);
+  const x1 = Math.min(r.x + r.w, artwork.width - marginPx), y1 = Math.min(r.y + r.h, artwork.height - marginPx);
   return { x: x0, y: y0, w: Math.max(0, x1 - x0), h: Math.max(0, y1 - y0) };
 }
 
