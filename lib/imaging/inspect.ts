@@ -145,7 +145,6 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
     const allowances = await measureAllowances(ctx);
     ctx.edgeAllowance = allowances.edge;
     ctx.flatAllowance = allowances.flat;
-    if (process.env.TYMPAN_DEBUG_EDGE) console.error("allowances", allowances.edge, Array.from(allowances.flat).map((v) => v.toFixed(1)).join(" "));
     findings = await compareSheet(ctx, artwork, profile, { ups, crops: input.crops ?? false }, timings, progress);
     Object.assign(passes, ctx.passes);
   } finally {
