@@ -124,14 +124,16 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
   const kind = new Uint8Array(core.w * core.h);
   const score = new Float32Array(core.w * core.h);
   const structural = new Uint8Array(core.w * core.h);
+  const shift = new Int8Array(core.w * core.h * 3);
   for (let row = 0; row < core.h; row++) {
     const from = row * ext.w + (core.x - ext.x);
     deltaE.set(diff.deltaE.subarray(from, from + core.w), row * core.w);
     kind.set(diff.kind.subarray(from, from + core.w), row * core.w);
     score.set(diff.score.subarray(from, from + core.w), row * core.w);
     structural.set(diff.structural.subarray(from, from + core.w), row * core.w);
+    shift.set(diff.shift.subarray(from * 3, (from + core.w) * 3), row * core.w * 3);
   }
-  return { ...diff, deltaE, kind, score, structural, rect: core };
+  return { ...diff, deltaE, kind, score, structural, shift, rect: core };
 }
 
 /**

@@ -133,6 +133,8 @@ export interface BandDifference {
   kind: Uint8Array;
   /** PIXEL_EXTRA_INK or PIXEL_MISSING_INK where the pixel reaches the second level within the structural allowance. */
   structural: Uint8Array;
+  /** Scan less artwork in CIELAB at the pixel itself (L*, a*, b*; 3 a pixel, rounded, ±127): whether a region's differences agree in direction. */
+  shift: Int8Array;
   flagged: number;
   candidates: number;
   /** Time spent in pixelmatch's screen (ms). */
@@ -142,7 +144,7 @@ export interface BandDifference {
 /** Reusable buffers of the comparison, used by one inspection at a time (bands.ts lends them; never shared between threads). */
 export class CompareScratch {
   private screen = new Uint8Array(0);
-  private results = { deltaE: new Float32Array(0), score: new Float32Array(0), kind: new Uint8Array(0), structural: new Uint8Array(0) };
+  private results = { deltaE: new Float32Array(0), score: new Float32Array(0), kind: new Uint8Array(0), structural: new Uint8Array(0), shift: new Int8Array(0) };
   /** Direct-mapped cache of CIELAB by 24-bit RGB: low-passed artwork and scan repeat their colours a lot. */
   readonly labKeys = new Int32Array(LAB_CACHE_SLOTS).fill(-1);
   readonly labValues = new Float32Array(LAB_CACHE_SLOTS * 3);
@@ -179,15 +181,16 @@ export class CompareScratch {
    * Zeroed per-pixel result arrays, valid until the next band: the caller consumes them before asking again.
    * Only the pixels the last band wrote (see wrote) are zeroed again: a handful, not four page-sized fills.
    */
-  result(n: number): { deltaE: Float32Array; score: Float32Array; kind: Uint8Array; structural: Uint8Array } {
+  result(n: number): { deltaE: Float32Array; score: Float32Array; kind: Uint8Array; structural: Uint8Array; shift: Int8Array } {
     let r = this.results;
     if (r.deltaE.length < n) {
-      r = this.results = { deltaE: new Float32Array(n), score: new Float32Array(n), kind: new Uint8Array(n), structural: new Uint8Array(n) };
+      r = this.results = { deltaE: new Float32Array(n), score: new Float32Array(n), kind: new Uint8Array(n), structural: new Uint8Array(n), shift: new Int8Array(n * 3) };
     } else if (this.writtenCount > this.written.length) {
       r.deltaE.fill(0);
       r.score.fill(0);
       r.kind.fill(0);
       r.structural.fill(0);
+      r.shift.fill(0);
     } else {
       for (let j = 0; j < this.writtenCount; j++) {
         const i = this.written[j];
@@ -195,10 +198,11 @@ export class CompareScratch {
         r.score[i] = 0;
         r.kind[i] = 0;
         r.structural[i] = 0;
+        r.shift[i * 3] = r.shift[i * 3 + 1] = r.shift[i * 3 + 2] = 0;
       }
     }
     this.writtenCount = 0;
-    return { deltaE: r.deltaE.subarray(0, n), score: r.score.subarray(0, n), kind: r.kind.subarray(0, n), structural: r.structural.subarray(0, n) };
+    return { deltaE: r.deltaE.subarray(0, n), score: r.score.subarray(0, n), kind: r.kind.subarray(0, n), structural: r.structural.subarray(0, n), shift: r.shift.subarray(0, n * 3) };
   }
   private written = new Int32Array(1 << 16);
   private writtenCount = 0;
@@ -215,7 +219,7 @@ const LAB_CACHE_SLOTS = 1 << 16;
 export function compareBand(band: BandPair, settings: CompareSettings, scratch: CompareScratch): BandDifference {
   const { width, rows, coreY, coreRows, art } = band;
   const n = width * coreRows;
-  const { deltaE, kind, score, structural } = scratch.result(n);
+  const { deltaE, kind, score, structural, shift } = scratch.result(n);
   if (art.low.length !== width * rows * 4 || band.scan.length !== width * rows * 4 || band.inspect.length !== n) {
     throw new RangeError(`Band buffers do not match ${width} × ${rows} px with ${coreRows} core rows.`);
   }
@@ -241,7 +245,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
     screenMs = performance.now() - screenStarted;
     if (count === 0) {
       scratch.screenClean = true;
-      return { deltaE, score, kind, structural, flagged: 0, candidates: 0, screenMs };
+      return { deltaE, score, kind, structural, shift, flagged: 0, candidates: 0, screenMs };
     }
   }
   const r = settings.radiusPx;
@@ -332,6 +336,9 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       if (structuralInk) structural[i] = k;
       if (s < low && !structuralInk && !everyPixel) continue;
       scratch.wrote(i);
+      shift[i * 3] = clamp127(sl - al);
+      shift[i * 3 + 1] = clamp127(sa - aa);
+      shift[i * 3 + 2] = clamp127(sb - ab);
       deltaE[i] = e;
       score[i] = s > 0 ? s : 0;
       if (s >= low) {
@@ -341,7 +348,11 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
     }
   }
   scratch.screenClean = true;
-  return { deltaE, score, kind, structural, flagged, candidates, screenMs };
+  return { deltaE, score, kind, structural, shift, flagged, candidates, screenMs };
+}
+
+function clamp127(v: number): number {
+  return v > 127 ? 127 : v < -127 ? -127 : Math.round(v);
 }
 
 /**

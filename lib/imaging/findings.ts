@@ -23,6 +23,9 @@ export interface Region {
   votes: [number, number, number];
   /** Pixels reaching the second level within the structural allowance: extra ink, missing ink. */
   structural: [number, number];
+  /** Sum of the pixels' scan − artwork CIELAB vectors, and of their lengths (coherence, see COLOUR_COHERENCE). */
+  shiftSum: [number, number, number];
+  shiftLength: number;
 }
 
 /** Labels flagged pixels band after band (rows in page order), 8-connected. */
@@ -36,16 +39,28 @@ export class RegionCollector {
   private runStrong: number[] = [];
   private runVotes: number[] = [];
   private runStructural: number[] = [];
+  private runShift: number[] = [];
   private parent: number[] = [];
   private prevStart = 0;
   private prevEnd = 0;
   private lastRow = -2;
 
-  /** `peakLevel`: the second level of the two-level flagging, counted per region. */
+  /**
+   * `peakLevel`: the second level of the two-level flagging, counted per region. `colourShifts`: collect only
+   * colour-shift pixels (true), only the others (false), or all (undefined). Apart, a dark solid's beating
+   * screen (a region of colour differences pointing every way, see COLOUR_COHERENCE) cannot swallow the speck
+   * of ink inside it.
+   */
   constructor(
     private readonly width: number,
     private readonly peakLevel = Infinity,
+    private readonly colourShifts?: boolean,
   ) {}
+
+  private takes(deltaE: number, kind: number): boolean {
+    if (deltaE === 0) return false;
+    return this.colourShifts === undefined || (kind === PIXEL_COLOUR_SHIFT) === this.colourShifts;
+  }
 
   get runCount(): number {
     return this.runY.length;
@@ -53,7 +68,7 @@ export class RegionCollector {
 
   /** Adds the core rows of one band; `pageY` is the page row of its first core row, `pageX` its first column. */
   addBand(diff: BandDifference, rows: number, pageY: number, pageX = 0, bandWidth = this.width): void {
-    const { deltaE, kind, score, structural } = diff;
+    const { deltaE, kind, score, structural, shift } = diff;
     for (let row = 0; row < rows; row++) {
       const y = pageY + row;
       if (y !== this.lastRow + 1) this.prevStart = this.prevEnd = this.runY.length;
@@ -61,10 +76,10 @@ export class RegionCollector {
       const base = row * bandWidth;
       let x = 0;
       while (x < bandWidth) {
-        if (deltaE[base + x] === 0) { x++; continue; }
+        if (!this.takes(deltaE[base + x], kind[base + x])) { x++; continue; }
         const start = x;
-        let sum = 0, max = 0, top = 0, strong = 0, v1 = 0, v2 = 0, v3 = 0, s1 = 0, s2 = 0;
-        while (x < bandWidth && deltaE[base + x] !== 0) {
+        let sum = 0, max = 0, top = 0, strong = 0, v1 = 0, v2 = 0, v3 = 0, s1 = 0, s2 = 0, dl = 0, da = 0, db = 0, len = 0;
+        while (x < bandWidth && this.takes(deltaE[base + x], kind[base + x])) {
           const e = deltaE[base + x];
           const sc = score[base + x];
           if (sc > top) top = sc;
@@ -74,6 +89,8 @@ export class RegionCollector {
           const st = structural[base + x];
           if (st === PIXEL_EXTRA_INK) s1++;
           else if (st === PIXEL_MISSING_INK) s2++;
+          const o = (base + x) * 3, sx = shift[o], sy = shift[o + 1], sz = shift[o + 2];
+          dl += sx; da += sy; db += sz; len += Math.sqrt(sx * sx + sy * sy + sz * sz);
           const k = kind[base + x];
           if (k === PIXEL_EXTRA_INK) v1 += e;
           else if (k === PIXEL_MISSING_INK) v2 += e;
@@ -82,7 +99,7 @@ export class RegionCollector {
         }
         const id = this.runY.length;
         this.runX0.push(pageX + start); this.runX1.push(pageX + x); this.runY.push(y);
-        this.runSum.push(sum); this.runMax.push(max); this.runScore.push(top); this.runStrong.push(strong); this.runVotes.push(v1, v2, v3); this.runStructural.push(s1, s2);
+        this.runSum.push(sum); this.runMax.push(max); this.runScore.push(top); this.runStrong.push(strong); this.runVotes.push(v1, v2, v3); this.runStructural.push(s1, s2); this.runShift.push(dl, da, db, len);
         this.parent.push(id);
       }
       this.joinRows(this.prevStart, this.prevEnd, rowStart, this.runY.length);
@@ -120,7 +137,7 @@ export class RegionCollector {
       const root = this.find(i);
       let r = byRoot.get(root);
       if (!r) {
-        r = { x0: Infinity, y0: Infinity, x1: -Infinity, y1: -Infinity, count: 0, sumDeltaE: 0, maxDeltaE: 0, maxScore: 0, strongCount: 0, votes: [0, 0, 0], structural: [0, 0] };
+        r = { x0: Infinity, y0: Infinity, x1: -Infinity, y1: -Infinity, count: 0, sumDeltaE: 0, maxDeltaE: 0, maxScore: 0, strongCount: 0, votes: [0, 0, 0], structural: [0, 0], shiftSum: [0, 0, 0], shiftLength: 0 };
         byRoot.set(root, r);
       }
       r.x0 = Math.min(r.x0, this.runX0[i]); r.x1 = Math.max(r.x1, this.runX1[i]);
@@ -133,6 +150,8 @@ export class RegionCollector {
       for (let k = 0; k < 3; k++) r.votes[k] += this.runVotes[i * 3 + k];
       r.structural[0] += this.runStructural[i * 2];
       r.structural[1] += this.runStructural[i * 2 + 1];
+      for (let k = 0; k < 3; k++) r.shiftSum[k] += this.runShift[i * 4 + k];
+      r.shiftLength += this.runShift[i * 4 + 3];
     }
     return [...byRoot.values()];
   }
@@ -144,6 +163,13 @@ export class RegionCollector {
  * blocking, while a speck of ink (extra or missing) keeps the profile's smaller minimum.
  */
 const MIN_COLOUR_SHIFT_MM2 = 1;
+/**
+ * A colour shift is a change of the ink's colour over an area, so its pixels' differences point one way: the
+ * length of their mean vector is most of their mean length (0.9 and more on a reprinted or contaminated patch).
+ * A dark solid's screen beating against the scanner's grid, or mottle, makes a region of differences pointing
+ * every way, whose mean is small: a spectrophotometer's aperture averages it away, and so does this rule.
+ */
+const COLOUR_COHERENCE = 0.5;
 /** Structural pixels (both kinds together) a changed glyph needs, in units of minStrongPx. */
 const STRUCTURAL_SHARE = 2;
 
@@ -162,6 +188,8 @@ export interface FindingRules {
 /** Regions → findings (without crops), largest first. */
 export function regionsToFindings(regions: Region[], rules: FindingRules): { findings: Finding[]; kept: Region[] } {
   const gapPx = (rules.mergeMm * rules.dpi) / 25.4;
+  // Incoherent colour regions go before any merging, which would hide them in a larger, mixed region.
+  regions = regions.filter((r) => kindOf(r.votes) !== "colour_shift" || coherence(r) >= COLOUR_COHERENCE);
   const strong = regions.filter((r) => r.strongCount >= rules.minStrongPx);
   // A changed glyph: the added and the removed strokes are separate small blobs, each often below the minimum
   // area. Taken together they count when they reach the second level like any region and hold enough pixels
@@ -197,6 +225,12 @@ export function regionsToFindings(regions: Region[], rules: FindingRules): { fin
   return { findings, kept };
 }
 
+/** Length of the region's mean difference vector over its pixels' mean length, 0–1. */
+function coherence(r: Region): number {
+  const [l, a, b] = r.shiftSum;
+  return r.shiftLength > 0 ? Math.sqrt(l * l + a * a + b * b) / r.shiftLength : 1;
+}
+
 function kindOf(votes: [number, number, number]): FindingKind {
   const [extra, missing, shift] = votes;
   if (shift > extra && shift > missing) return "colour_shift";
@@ -205,7 +239,7 @@ function kindOf(votes: [number, number, number]): FindingKind {
 
 /** Merges regions whose boxes come within `gapPx` of each other, until none do. */
 function mergeNearby(regions: Region[], gapPx: number): Region[] {
-  const out = regions.map((r) => ({ ...r, votes: [...r.votes] as [number, number, number], structural: [...r.structural] as [number, number] }));
+  const out = regions.map((r) => ({ ...r, votes: [...r.votes] as [number, number, number], structural: [...r.structural] as [number, number], shiftSum: [...r.shiftSum] as [number, number, number] }));
   let changed = true;
   while (changed) {
     changed = false;
@@ -219,6 +253,8 @@ function mergeNearby(regions: Region[], gapPx: number): Region[] {
         for (let k = 0; k < 3; k++) a.votes[k] += b.votes[k];
         a.structural[0] += b.structural[0];
         a.structural[1] += b.structural[1];
+        for (let k = 0; k < 3; k++) a.shiftSum[k] += b.shiftSum[k];
+        a.shiftLength += b.shiftLength;
         out.splice(j, 1);
         j--;
         changed = true;

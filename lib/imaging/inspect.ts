@@ -175,7 +175,8 @@ async function compareSheet(
 ): Promise<Finding[]> {
   const { inspectPx, peakDeltaE00: peak } = ctx;
   const dpi = artwork.dpi;
-  const collector = new RegionCollector(artwork.width, peak);
+  const inkRegions = new RegionCollector(artwork.width, peak, false);
+  const colourRegions = new RegionCollector(artwork.width, peak, true);
   const bandPixels = artwork.width * artwork.height > CACHE_MAX_PIXELS ? LARGE_PAGE_BAND_PIXELS : BAND_PIXELS;
   const bandRows = Math.max(64, Math.floor(bandPixels / artwork.width), haloPx(ctx) * 4);
   const yEnd = inspectPx.y + inspectPx.h;
@@ -184,7 +185,8 @@ async function compareSheet(
     const rows = Math.min(bandRows, yEnd - y);
     const diff = await processRect(ctx, { x: 0, y, w: artwork.width, h: rows });
     started = performance.now();
-    collector.addBand(diff, rows, y);
+    inkRegions.addBand(diff, rows, y);
+    colourRegions.addBand(diff, rows, y);
     timings.findings += performance.now() - started;
     progress("compare", 20 + (70 * (y + rows - inspectPx.y)) / Math.max(1, inspectPx.h));
   }
@@ -194,7 +196,7 @@ async function compareSheet(
   progress("findings", 90);
   started = performance.now();
   const minAreaMm2 = (Math.PI / 4) * profile.minDefectMm ** 2;
-  const { findings } = regionsToFindings(collector.regions(), {
+  const { findings } = regionsToFindings([...inkRegions.regions(), ...colourRegions.regions()], {
     dpi,
     minStrongPx: Math.max(3, Math.round((STRONG_SHARE * minAreaMm2) / (25.4 / dpi) ** 2)),
     minAreaMm2,
