@@ -17,6 +17,8 @@ import type { PreparedRect } from "./prepared";
 export const PIXEL_EXTRA_INK = 1;
 export const PIXEL_MISSING_INK = 2;
 export const PIXEL_COLOUR_SHIFT = 3;
+/** Bit of BandDifference.structural: the artwork has type or linework within the reach of this pixel. */
+export const PIXEL_ON_LINEWORK = 4;
 
 const DE00_OVER_DEAB = 1.4;
 /**
@@ -131,7 +133,10 @@ export interface BandDifference {
   /** ΔE00 less the edge allowance: what the two flagging levels test. */
   score: Float32Array;
   kind: Uint8Array;
-  /** PIXEL_EXTRA_INK or PIXEL_MISSING_INK where the pixel reaches the second level within the structural allowance. */
+  /**
+   * PIXEL_EXTRA_INK or PIXEL_MISSING_INK (low two bits) where the pixel reaches the second level within the
+   * structural allowance, plus PIXEL_ON_LINEWORK where the artwork has type or linework around it.
+   */
   structural: Uint8Array;
   /** Scan less artwork in CIELAB at the pixel itself (L*, a*, b*; 3 a pixel, rounded, ±127): whether a region's differences agree in direction. */
   shift: Int8Array;
@@ -333,9 +338,9 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       // Small print is dark type on a light ground (the ground's lightness dominates around it); in type
       // reversed out of a dark solid the scan's softness fills strokes in, which looks much like a change.
       const structuralInk = k !== PIXEL_COLOUR_SHIFT && nearType && e - EDGE_ALLOWANCE_STRUCTURAL * contrast >= peak;
-      if (structuralInk) structural[i] = k;
       if (s < low && !structuralInk && !everyPixel) continue;
       scratch.wrote(i);
+      structural[i] = (structuralInk ? k : 0) | (contrast >= STRUCTURAL_MIN_CONTRAST ? PIXEL_ON_LINEWORK : 0);
       shift[i * 3] = clamp127(sl - al);
       shift[i * 3 + 1] = clamp127(sa - aa);
       shift[i * 3 + 2] = clamp127(sb - ab);

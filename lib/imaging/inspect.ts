@@ -198,6 +198,7 @@ async function compareSheet(
   const minAreaMm2 = (Math.PI / 4) * profile.minDefectMm ** 2;
   const { findings } = regionsToFindings([...inkRegions.regions(), ...colourRegions.regions()], {
     dpi,
+    peakDeltaE00: peak,
     minStrongPx: Math.max(3, Math.round((STRONG_SHARE * minAreaMm2) / (25.4 / dpi) ** 2)),
     minAreaMm2,
     mergeMm: Math.max(0.6, 2 * profile.minDefectMm),

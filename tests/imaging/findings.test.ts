@@ -74,6 +74,14 @@ describe("regions to findings", () => {
     expect(findings.map((f) => [f.kind, f.xMm, f.wMm])).toEqual([["colour_shift", 1.1, 1.1], ["extra_ink", 0.4, 0.2]]);
   });
 
+  it("calls a long thin region a streak by its second moments (a line of length L has σ = L / √12)", () => {
+    const c = new RegionCollector(120, 5);
+    // 254 dpi, 0.1 mm a pixel: a 100 × 1 px line (10 mm × 0.1 mm) and a 3 × 3 px spot.
+    c.addBand(band(120, ["#".repeat(100) + "...............###", ".".repeat(117) + "###", ".".repeat(117) + "###"]), 3, 0);
+    const { findings } = regionsToFindings(c.regions(), { ...rules, pageMm: { widthMm: 12, heightMm: 1 } });
+    expect(findings.map((f) => f.kind)).toEqual(["streak", "extra_ink"]);
+  });
+
   it("numbers ups row-major from 1 inside the ups' area, null outside", () => {
     const page = { widthMm: 100, heightMm: 100 };
     const ups = { rows: 2, columns: 3, areaMm: { x: 10, y: 10, w: 90, h: 80 } };
