@@ -77,25 +77,37 @@ async function makeJob(tag: string, customerName: string): Promise<PlantJob> {
   const tilesPrefix = `tiles/${randomUUID()}/`;
   await putObject(`${tilesPrefix}artwork.dzi`, Buffer.from('<?xml version="1.0"?><Image/>'), "application/xml");
   const [{ id: draftRevisionId }] = await db.insert(artworkRevisions).values(revision(2, "draft")).$returningId();
+  const { inspectionId, findingId } = await addInspectedSheet({ jobId, approvedRevisionId }, 17, tilesPrefix);
   const [profile] = await db.select().from(toleranceProfiles).limit(1);
-  const scan = (n: number) => ({
-    jobId,
-    artworkRevisionId: approvedRevisionId,
-    sheetNumber: n,
-    objectKey: `scans/${randomUUID()}.png`,
-    sha256: sha(),
-    dpi: 150,
-    byteSize: 2000,
-    originalFilename: `sheet-${n}.png`,
-    contentType: "image/png",
-  });
-  const [{ id: scanId }] = await db.insert(scans).values(scan(17)).$returningId();
-  const [{ id: failedScanId }] = await db.insert(scans).values(scan(18)).$returningId();
+  const [{ id: failedScanId }] = await db.insert(scans).values(scanRow({ jobId, approvedRevisionId }, 18)).$returningId();
+  const [{ id: failedInspectionId }] = await db
+    .insert(inspections)
+    .values({ scanId: failedScanId, artworkRevisionId: approvedRevisionId, toleranceProfileId: profile.id, status: "failed", errorCode: "unreadable_scan", errorMessage: "The scan could not be read." })
+    .$returningId();
+  return { customerId, customerName: name, jobId, jobNumber, approvedRevisionId, draftRevisionId, inspectionId, failedInspectionId, findingId };
+}
+
+const scanRow = (job: { jobId: number; approvedRevisionId: number }, n: number) => ({
+  jobId: job.jobId,
+  artworkRevisionId: job.approvedRevisionId,
+  sheetNumber: n,
+  objectKey: `scans/${randomUUID()}.png`,
+  sha256: sha(),
+  dpi: 150,
+  byteSize: 2000,
+  originalFilename: `sheet-${n}.png`,
+  contentType: "image/png",
+});
+
+/** A scanned sheet of the job with a finished inspection and one undecided finding (an extra-ink spot in up 2). */
+export async function addInspectedSheet(job: { jobId: number; approvedRevisionId: number }, sheetNumber: number, tilesPrefix: string | null = null) {
+  const [profile] = await db.select().from(toleranceProfiles).limit(1);
+  const [{ id: scanId }] = await db.insert(scans).values(scanRow(job, sheetNumber)).$returningId();
   const [{ id: inspectionId }] = await db
     .insert(inspections)
     .values({
       scanId,
-      artworkRevisionId: approvedRevisionId,
+      artworkRevisionId: job.approvedRevisionId,
       toleranceProfileId: profile.id,
       status: "done",
       stage: "done",
@@ -113,13 +125,9 @@ async function makeJob(tag: string, customerName: string): Promise<PlantJob> {
       driftDeltaE00: 1.2,
       startedAt: new Date(),
       finishedAt: new Date(),
-      tilesStatus: "ready",
+      tilesStatus: tilesPrefix ? "ready" : "none",
       tilesPrefix,
     })
-    .$returningId();
-  const [{ id: failedInspectionId }] = await db
-    .insert(inspections)
-    .values({ scanId: failedScanId, artworkRevisionId: approvedRevisionId, toleranceProfileId: profile.id, status: "failed", errorCode: "unreadable_scan", errorMessage: "The scan could not be read." })
     .$returningId();
   const [{ id: findingId }] = await db
     .insert(findings)
@@ -139,7 +147,7 @@ async function makeJob(tag: string, customerName: string): Promise<PlantJob> {
       cropDifferenceKey: CROP_KEY,
     })
     .$returningId();
-  return { customerId, customerName: name, jobId, jobNumber, approvedRevisionId, draftRevisionId, inspectionId, failedInspectionId, findingId };
+  return { inspectionId, findingId };
 }
 
 /** One tiny PNG stands in for every crop image and preview. */
