@@ -46,7 +46,9 @@ async function main() {
   const reader = (await createApiToken(null, plant.actors.qa.id, "load")).token;
   const reviewer = (await createApiToken(null, plant.actors.reviewer.id, "load")).token;
 
-  const app = spawn(process.execPath, ["node_modules/next/dist/bin/next", "start", "-H", "127.0.0.1", "-p", String(PORT)], {
+  // BENCH_CPU_PROF=DIR: the app writes a V8 CPU profile there when it stops (to look for hot paths).
+  const profile = process.env.BENCH_CPU_PROF ? ["--cpu-prof", `--cpu-prof-dir=${process.env.BENCH_CPU_PROF}`] : [];
+  const app = spawn(process.execPath, [...profile, "node_modules/next/dist/bin/next", "start", "-H", "127.0.0.1", "-p", String(PORT)], {
     env: { ...process.env, NODE_ENV: "production" },
     stdio: ["ignore", "ignore", "inherit"],
   });
