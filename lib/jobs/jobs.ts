@@ -3,11 +3,12 @@
 // another customer's job is "not found". Each change writes its audit event in the same transaction.
 import { and, asc, desc, eq, like, or, sql, type SQL } from "drizzle-orm";
 import { db, type Tx } from "../../db/client";
-import { customers, inspections, jobs, scans, toleranceProfiles, type Job } from "../../db/schema";
+import { customers, jobs, toleranceProfiles, type Job } from "../../db/schema";
 import { recordAudit } from "../audit";
 import { authorize, can, customerScope, type Actor } from "../auth/policy";
 import { AppError, invalidInput } from "../errors";
 import { loadJobFor } from "../pipeline/access";
+import { selectJobList } from "./queries";
 import { isDuplicateKey, parseInput, type Page } from "../validation";
 import { STATUS_LABELS, STATUS_TRANSITIONS, jobInput, jobListQuery, jobStatusInput, type JobInput, type JobStatus } from "./schema";
 
@@ -67,26 +68,8 @@ export async function listJobs(actor: Actor, rawQuery: unknown): Promise<Page<Jo
   const where = conditions.length ? and(...conditions) : undefined;
   const direction = query.dir === "desc" ? desc : asc;
   const column = { jobNumber: jobs.jobNumber, title: jobs.title, customer: customers.name, status: jobs.status, updated: jobs.updatedAt }[query.sort];
-  const scanCount = sql<number>`(select count(*) from ${scans} where ${scans.jobId} = ${jobs.id})`.mapWith(Number);
-  const openSheetCount = sql<number>`(select count(*) from ${inspections} join ${scans} on ${scans.id} = ${inspections.scanId}
-    where ${scans.jobId} = ${jobs.id} and ${inspections.verdict} = 'pending')`.mapWith(Number);
   const [rows, [{ total }]] = await Promise.all([
-    db
-      .select({
-        id: jobs.id,
-        jobNumber: jobs.jobNumber,
-        title: jobs.title,
-        customerId: jobs.customerId,
-        customerName: customers.name,
-        status: jobs.status,
-        press: jobs.press,
-        scanCount,
-        openSheetCount,
-        updatedAt: jobs.updatedAt,
-      })
-      .from(jobs)
-      .innerJoin(customers, eq(customers.id, jobs.customerId))
-      .where(where)
+    selectJobList(where)
       .orderBy(direction(column), desc(jobs.id))
       .limit(query.pageSize)
       .offset((query.page - 1) * query.pageSize),

@@ -66,34 +66,31 @@ export interface FindingView {
   crops: { artwork: string; scan: string; difference: string } | null;
 }
 
+/** One stored finding as the API and the pages show it: mm, ΔE00, up, decision and links to its crop images. */
+export function findingView(f: typeof findings.$inferSelect): FindingView {
+  const crops = `/api/inspections/${f.inspectionId}/findings/${f.id}/crops`;
+  return {
+    id: f.id,
+    kind: f.kind,
+    xMm: f.xUm / 1000,
+    yMm: f.yUm / 1000,
+    wMm: f.wUm / 1000,
+    hMm: f.hUm / 1000,
+    areaMm2: f.areaUm2 / 1e6,
+    deltaE00Mean: f.deltaE00Mean,
+    deltaE00Max: f.deltaE00Max,
+    up: f.upIndex,
+    decision: f.decision,
+    crops: f.cropScanKey ? { artwork: `${crops}/artwork`, scan: `${crops}/scan`, difference: `${crops}/difference` } : null,
+  };
+}
+
 /** Findings of one inspection with links to their crop images, largest first. */
 export async function listFindings(actor: Actor, inspectionId: number): Promise<FindingView[]> {
   const { jobId } = await loadInspection(inspectionId);
   await loadJobFor(actor, jobId, "inspection.read");
   const rows = await db.select().from(findings).where(eq(findings.inspectionId, inspectionId));
-  const base = `/api/inspections/${inspectionId}/findings`;
-  return rows
-    .sort((a, b) => b.areaUm2 - a.areaUm2)
-    .map((f) => ({
-      id: f.id,
-      kind: f.kind,
-      xMm: f.xUm / 1000,
-      yMm: f.yUm / 1000,
-      wMm: f.wUm / 1000,
-      hMm: f.hUm / 1000,
-      areaMm2: f.areaUm2 / 1e6,
-      deltaE00Mean: f.deltaE00Mean,
-      deltaE00Max: f.deltaE00Max,
-      up: f.upIndex,
-      decision: f.decision,
-      crops: f.cropScanKey
-        ? {
-            artwork: `${base}/${f.id}/crops/artwork`,
-            scan: `${base}/${f.id}/crops/scan`,
-            difference: `${base}/${f.id}/crops/difference`,
-          }
-        : null,
-    }));
+  return rows.sort((a, b) => b.areaUm2 - a.areaUm2).map(findingView);
 }
 
 export interface InspectionView {
