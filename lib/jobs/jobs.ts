@@ -175,10 +175,13 @@ function changesOf(before: Job, after: ReturnType<typeof columnsOf>) {
 }
 
 export async function updateJob(actor: Actor, jobId: number, rawInput: unknown): Promise<JobDetail> {
-  const input = parseInput(jobInput, rawInput);
+  let jobNumber = "";
   try {
     await db.transaction(async (tx) => {
+      // The policy answers before the input is read: a caller who may not edit the job learns nothing more.
       const job = await loadJobFor(actor, jobId, "job.update", tx);
+      const input = parseInput(jobInput, rawInput);
+      jobNumber = input.jobNumber;
       await tx.select({ id: jobs.id }).from(jobs).where(eq(jobs.id, job.id)).for("update");
       if (job.status === "completed" || job.status === "cancelled") {
         throw new AppError("job_closed", `Job ${job.jobNumber} is ${STATUS_LABELS[job.status].toLowerCase()}; a closed job is not edited.`, 409);
@@ -189,16 +192,16 @@ export async function updateJob(actor: Actor, jobId: number, rawInput: unknown):
       await recordAudit(tx, { actorId: actor.id, action: "job.update", subjectType: "job", subjectId: job.id, details: { jobId: job.id, changed: changesOf(job, values) } });
     });
   } catch (error) {
-    if (isDuplicateKey(error)) throw duplicateNumber(input.jobNumber);
+    if (isDuplicateKey(error)) throw duplicateNumber(jobNumber);
     throw error;
   }
   return getJob(actor, jobId);
 }
 
 export async function changeJobStatus(actor: Actor, jobId: number, rawInput: unknown): Promise<JobDetail> {
-  const { status } = parseInput(jobStatusInput, rawInput);
   await db.transaction(async (tx) => {
     const job = await loadJobFor(actor, jobId, "job.update", tx);
+    const { status } = parseInput(jobStatusInput, rawInput);
     const [locked] = await tx.select({ status: jobs.status }).from(jobs).where(eq(jobs.id, job.id)).for("update");
     if (!STATUS_TRANSITIONS[locked.status].includes(status)) {
       const allowed = STATUS_TRANSITIONS[locked.status].map((s) => STATUS_LABELS[s].toLowerCase());

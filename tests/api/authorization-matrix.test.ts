@@ -186,6 +186,17 @@ describe("authorization matrix: route handlers", () => {
     }
   });
 
+  it("the policy answers before the body is read: a job change with an empty body is 403 or 404 for those without the right, 422 for the others", async () => {
+    for (const file of ["app/api/v1/jobs/[jobId]/route.ts", "app/api/jobs/[jobId]/status/route.ts"]) {
+      const route = ROUTES.find((r) => r.file === file && r.method !== "GET")!;
+      for (const caller of callers) {
+        const want = expectedAnswer(caller, route.action, route.scope, plant.a.customerId);
+        const { status } = await send({ ...route, request: (j) => ({ ...route.request(j, plant), body: "{}" }) }, caller);
+        expect(status, `${file} as ${caller.name}`).toBe(want === "allowed" ? 422 : want);
+      }
+    }
+  });
+
   it("refuses a cookie-authenticated change sent from another site, but not the same change with a token", async () => {
     const retry = (await moduleOf("app/api/v1/inspections/[inspectionId]/retry/route.ts")).POST as Handler;
     const job = plant.b;
