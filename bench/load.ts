@@ -56,6 +56,8 @@ async function main() {
     await waitForApp();
     const auth = (t: string) => ({ authorization: `Bearer ${t}` });
     const runs = [
+      // The peer in the same run: what the framework alone answers on this machine now (no token, no database).
+      { name: "Peer: the OpenAPI document (no token, no database)", path: "/api/v1/openapi.json", headers: {} },
       { name: "Findings list (40 findings)", path: `/api/v1/inspections/${plant.a.inspectionId}/findings?limit=100`, headers: auth(reader) },
       { name: "Job page's data", path: `/api/v1/jobs/${plant.a.jobId}`, headers: auth(reader) },
       {

@@ -1,14 +1,31 @@
 // Inspections as users act on them: retry a failed one (QA, admin), read a finding's crop image.
 import { eq, sql } from "drizzle-orm";
 import { db } from "@/db/client";
-import { findings, inspections, scans } from "@/db/schema";
+import { findings, inspections, jobs, scans } from "@/db/schema";
 import { recordAudit } from "@/lib/audit";
-import { authorize, type Actor } from "@/lib/auth/policy";
+import { authorize, can, type Action, type Actor } from "@/lib/auth/policy";
 import { notFound } from "@/lib/errors";
 import { enqueueInspection } from "@/lib/queue/queues";
 import type { CropKind } from "@/storage/keys";
 import type { FindingKind } from "@/lib/imaging/types";
 import { conflict, loadJobFor } from "./access";
+
+/**
+ * The inspection with its job's id, after the policy check, in one query (the hot path of findings and crops):
+ * an inspection the actor may not read is "not found", like one that does not exist.
+ */
+async function inspectionFor(actor: Actor, id: number, action: Action) {
+  const [row] = await db
+    .select({ inspection: inspections, jobId: scans.jobId, customerId: jobs.customerId })
+    .from(inspections)
+    .innerJoin(scans, eq(scans.id, inspections.scanId))
+    .innerJoin(jobs, eq(jobs.id, scans.jobId))
+    .where(eq(inspections.id, id))
+    .limit(1);
+  if (!row || !can(actor, "job.read", { customerId: row.customerId })) throw notFound("The inspection");
+  authorize(actor, action, { customerId: row.customerId });
+  return row;
+}
 
 async function loadInspection(id: number) {
   const [row] = await db
@@ -42,8 +59,7 @@ export async function retryInspection(actor: Actor, inspectionId: number): Promi
 
 /** The storage key of one crop of one finding, after checking the actor may read the inspection. */
 export async function cropKeyFor(actor: Actor, inspectionId: number, findingId: number, kind: CropKind): Promise<string> {
-  const { jobId } = await loadInspection(inspectionId);
-  await loadJobFor(actor, jobId, "inspection.read");
+  await inspectionFor(actor, inspectionId, "inspection.read");
   const [finding] = await db.select().from(findings).where(eq(findings.id, findingId)).limit(1);
   if (!finding || finding.inspectionId !== inspectionId) throw notFound("The finding");
   const key = { artwork: finding.cropArtworkKey, scan: finding.cropScanKey, difference: finding.cropDifferenceKey }[kind];
@@ -87,8 +103,7 @@ export function findingView(f: typeof findings.$inferSelect): FindingView {
 
 /** Findings of one inspection with links to their crop images, largest first. */
 export async function listFindings(actor: Actor, inspectionId: number): Promise<FindingView[]> {
-  const { jobId } = await loadInspection(inspectionId);
-  await loadJobFor(actor, jobId, "inspection.read");
+  await inspectionFor(actor, inspectionId, "inspection.read");
   const rows = await db.select().from(findings).where(eq(findings.inspectionId, inspectionId));
   return rows.sort((a, b) => b.areaUm2 - a.areaUm2).map(findingView);
 }
