@@ -1,10 +1,11 @@
 // `npm run bench:load`: the API under load on loopback against the production build. 50 concurrent clients for
-// 30 s on each of: a findings list, a job page's data, and finding decisions. For the decisions each client is a
-// reviewer on a sheet of their own: they accept their finding naming the version they last saw, then undo it,
-// and again, so every answer should be a 2xx and an error is a real one (an earlier version sent every client
-// the same rejection without a comment: all 422s). Writes its own section of bench/RESULTS.md (between the markers), leaving the
-// engine's sections alone. Target: p95 < 100 ms on a 2-core machine, no errors (non-2xx count as errors).
-// Expects the services and a migrated database in the environment (bench/load.sh sets them up).
+// 30 s on each of: the OpenAPI document (the framework's floor, a peer in the same run), a findings list, a job
+// page's data, and finding decisions. For the decisions each client is a reviewer on a sheet of their own who
+// accepts their finding and then rejects it, naming the version last seen, so every answer should be a 2xx and
+// an error is a real one (an earlier version sent every client a rejection without a comment: all 422s).
+// Writes its own section of bench/RESULTS.md (between the markers), leaving the engine's sections alone.
+// Target: p95 < 100 ms on a 2-core machine, no errors (non-2xx count as errors). Expects the services and a
+// migrated database in the environment (bench/load.sh sets them up).
 import { spawn } from "node:child_process";
 import { readFileSync, writeFileSync } from "node:fs";
 import os from "node:os";
