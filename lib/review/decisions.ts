@@ -7,6 +7,7 @@ import { findings, inspections, users, type FindingRow } from "@/db/schema";
 import { recordAudit } from "@/lib/audit";
 import type { Actor } from "@/lib/auth/policy";
 import { AppError, notFound } from "@/lib/errors";
+import { refreshRunMemory } from "@/lib/run/memory-store";
 import { loadSheetFor, type SheetRow } from "./load";
 
 export type Decision = "accepted" | "rejected";
@@ -125,6 +126,8 @@ async function changeFinding(
       .set({ decision: change.decision, decisionReason: change.reason, comment: change.comment, decidedBy: actor.id, decidedAt, version: finding.version + 1 })
       .where(eq(findings.id, finding.id));
     await tx.update(inspections).set({ version: sql`${inspections.version} + 1` }).where(eq(inspections.id, input.inspectionId));
+    // Later sheets of the run may now be pre-marked "accepted on sheet N" (or no longer, after an undo).
+    await refreshRunMemory(tx, sheet.scan.artworkRevisionId);
     await recordAudit(tx, {
       actorId: actor.id,
       action: auditAction,
