@@ -47,6 +47,8 @@ export interface DecideInput {
   decision: Decision;
   reason: DecisionReason;
   comment?: string | null;
+  /** The reviewer confirmed the suggestion of an earlier sheet's accepted finding at the same place. */
+  confirmsPrior?: boolean;
 }
 
 export interface DecisionResult {
@@ -108,7 +110,7 @@ function checkDecision(input: DecideInput): string | null {
 async function changeFinding(
   actor: Actor,
   input: { inspectionId: number; findingId: number; version: number },
-  change: { decision: "pending" | Decision; reason: DecisionReason | null; comment: string | null },
+  change: { decision: "pending" | Decision; reason: DecisionReason | null; comment: string | null; confirmsPrior?: boolean },
   auditAction: string,
 ): Promise<DecisionResult> {
   return db.transaction(async (tx) => {
@@ -141,6 +143,7 @@ async function changeFinding(
         reason: change.reason,
         comment: change.comment,
         version: finding.version + 1,
+        ...(change.confirmsPrior && finding.priorFindingId ? { confirmsPriorFindingId: finding.priorFindingId } : {}),
       },
     });
     return {
@@ -158,7 +161,7 @@ async function changeFinding(
 /** Accept or reject one finding (policy: finding.decide). */
 export async function decideFinding(actor: Actor, input: DecideInput): Promise<DecisionResult> {
   const comment = checkDecision(input);
-  return changeFinding(actor, input, { decision: input.decision, reason: input.reason, comment }, "finding.decide");
+  return changeFinding(actor, input, { decision: input.decision, reason: input.reason, comment, confirmsPrior: input.confirmsPrior }, "finding.decide");
 }
 
 /** Put a decided finding back to pending; allowed until the sheet is signed (policy: finding.decide). */

@@ -43,8 +43,10 @@ function readRfc4180(text: string): string[][] {
         i++;
         for (;;) {
           if (i >= text.length) throw new Error("unterminated quoted field");
-          if (text[i] === '"' && text[i + 1] === '"') (field += '"'), (i += 2);
-          else if (text[i] === '"') break;
+          if (text[i] === '"' && text[i + 1] === '"') {
+            field += '"';
+            i += 2;
+          } else if (text[i] === '"') break;
           else field += text[i++];
         }
         i++;
