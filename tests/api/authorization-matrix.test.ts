@@ -22,6 +22,12 @@ const { POST: approve } = await import("@/app/api/artworks/[revisionId]/approve/
 const { GET: findings } = await import("@/app/api/inspections/[inspectionId]/findings/route");
 const { POST: retry } = await import("@/app/api/inspections/[inspectionId]/retry/route");
 const { GET: crop } = await import("@/app/api/inspections/[inspectionId]/findings/[findingId]/crops/[kind]/route");
+// --- Press run routes (issue 13: traceability, CSV, reports) ---
+const { GET: v1Run } = await import("@/app/api/v1/jobs/[jobId]/run/route");
+const { GET: v1RunCsv } = await import("@/app/api/v1/jobs/[jobId]/run/sheets.csv/route");
+const { GET: v1RunReport } = await import("@/app/api/v1/jobs/[jobId]/run/report.pdf/route");
+const { GET: v1SheetReport } = await import("@/app/api/v1/inspections/[inspectionId]/report.pdf/route");
+// --- end of press run routes ---
 
 /** Role × action, as in DEVELOPERS.md. Customer users: their own customer's jobs only. */
 const POLICY_TABLE: Record<Action, readonly Role[]> = {
@@ -131,6 +137,27 @@ const ROUTES: RouteCase[] = [
       params: { inspectionId: String(j.inspectionId), findingId: String(j.findingId), kind: "scan" },
     }),
   },
+  // --- Press run routes (issue 13): read like the sheets they are made of ---
+  { name: "GET /api/v1/jobs/{id}/run", handler: v1Run as Handler, action: "inspection.read", request: (j) => ({ path: `/api/v1/jobs/${j.jobId}/run`, params: { jobId: String(j.jobId) } }) },
+  {
+    name: "GET /api/v1/jobs/{id}/run/sheets.csv",
+    handler: v1RunCsv as Handler,
+    action: "inspection.read",
+    request: (j) => ({ path: `/api/v1/jobs/${j.jobId}/run/sheets.csv`, params: { jobId: String(j.jobId) } }),
+  },
+  {
+    name: "GET /api/v1/jobs/{id}/run/report.pdf",
+    handler: v1RunReport as Handler,
+    action: "inspection.read",
+    request: (j) => ({ path: `/api/v1/jobs/${j.jobId}/run/report.pdf`, params: { jobId: String(j.jobId) } }),
+  },
+  {
+    name: "GET /api/v1/inspections/{id}/report.pdf",
+    handler: v1SheetReport as Handler,
+    action: "inspection.read",
+    request: (j) => ({ path: `/api/v1/inspections/${j.inspectionId}/report.pdf`, params: { inspectionId: String(j.inspectionId) } }),
+  },
+  // --- end of press run routes ---
 ];
 
 interface Caller {
