@@ -1,7 +1,6 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
-import { ScanCaution } from "@/components/caution";
 import { RunChart, type ChartSheet } from "@/components/run/run-chart";
 import { RunTable } from "@/components/run/run-table";
 import { requireActor } from "@/lib/auth/session";
@@ -113,7 +112,6 @@ export default async function RunPage(props: { params: Promise<{ jobId: string }
         <h2 id="table-heading" className="text-lg font-semibold">Sheets by sheet number</h2>
         {run.sheets.length === 0 ? <p className="text-sm text-ink-muted">No sheets of this run have been scanned yet.</p> : <RunTable jobId={run.job.id} sheets={run.sheets} />}
       </section>
-      <ScanCaution />
     </div>
   );
 }
