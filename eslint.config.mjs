@@ -4,7 +4,7 @@ import nextTs from "eslint-config-next/typescript";
 const config = [
   ...nextVitals,
   ...nextTs,
-  { ignores: [".next/**", ".next-test/**", ".data/**", "node_modules/**", "next-env.d.ts", "db/migrations/**"] },
+  { ignores: [".next/**", ".next-test/**", ".data/**", "node_modules/**", "next-env.d.ts", "db/migrations/**", ".scratch/**", "test-results/**"] },
 ];
 
 export default config;

@@ -1,16 +1,20 @@
 // `npm run bench:load`: the API under load on loopback against the production build. 50 concurrent clients for
-// 30 s on each of: a findings list, a job page's data, and a finding decision (a new finding every request, so
-// none is a stale-version 409). Writes its own section of bench/RESULTS.md (between the markers), leaving the
-// engine's sections alone. Target: p95 < 100 ms on a 2-core machine, no errors (non-2xx count as errors).
-// Expects the services and a migrated database in the environment (bench/load.sh sets them up).
+// 30 s on each of: the OpenAPI document (the framework's floor, a peer in the same run), a findings list, a job
+// page's data, and finding decisions. For the decisions each client is a reviewer on a sheet of their own who
+// accepts their finding and then rejects it, naming the version last seen, so every answer should be a 2xx and
+// an error is a real one (an earlier version sent every client a rejection without a comment: all 422s).
+// Writes its own section of bench/RESULTS.md (between the markers), leaving the engine's sections alone.
+// Target: p95 < 100 ms on a 2-core machine, no errors (non-2xx count as errors). Expects the services and a
+// migrated database in the environment (bench/load.sh sets them up).
 import { spawn } from "node:child_process";
 import { readFileSync, writeFileSync } from "node:fs";
 import os from "node:os";
 import autocannon from "autocannon";
 import { closeDb, db } from "../db/client";
 import { findings } from "../db/schema";
+import { decisionRequests } from "./decision-requests";
 import { createApiToken } from "../lib/auth/tokens";
-import { makePlant } from "../tests/api/support";
+import { addInspectedSheet, makePlant } from "../tests/api/support";
 
 const PORT = Number(process.env.BENCH_PORT ?? 3690);
 const BASE = `http://127.0.0.1:${PORT}`;
@@ -33,23 +37,9 @@ async function waitForApp() {
 
 async function main() {
   const plant = await makePlant();
-  // Findings for the decision run: one per request is plenty at a few thousand requests a second.
-  const extra = 60_000;
-  for (let i = 0; i < extra; i += 2000) {
-    const rows = Array.from({ length: Math.min(2000, extra - i) }, (_, k) => ({
-      inspectionId: plant.b.inspectionId,
-      xUm: (i + k) % 400_000,
-      yUm: 1000,
-      wUm: 500,
-      hUm: 500,
-      areaUm2: 250_000,
-      deltaE00Mean: 4,
-      deltaE00Max: 6,
-      kind: "colour_shift" as const,
-    }));
-    await db.insert(findings).values(rows);
-  }
-  const ids = (await db.select({ id: findings.id }).from(findings)).map((r) => r.id).filter((id) => id > plant.b.findingId);
+  // One sheet with one finding per client, for the decision run.
+  const sheets = [];
+  for (let n = 0; n < CONNECTIONS; n++) sheets.push(await addInspectedSheet(plant.b, 1000 + n));
   // 40 findings on the listed inspection, as a busy sheet might have.
   await db.insert(findings).values(
     Array.from({ length: 40 }, (_, k) => ({ inspectionId: plant.a.inspectionId, xUm: k * 5000, yUm: 2000, wUm: 800, hUm: 600, areaUm2: 480_000 + k, deltaE00Mean: 5, deltaE00Max: 9, kind: "extra_ink" as const })),
@@ -57,41 +47,39 @@ async function main() {
   const reader = (await createApiToken(null, plant.actors.qa.id, "load")).token;
   const reviewer = (await createApiToken(null, plant.actors.reviewer.id, "load")).token;
 
-  const app = spawn(process.execPath, ["node_modules/next/dist/bin/next", "start", "-H", "127.0.0.1", "-p", String(PORT)], {
+  // BENCH_CPU_PROF=DIR: the app writes a V8 CPU profile there when it stops (to look for hot paths).
+  const profile = process.env.BENCH_CPU_PROF ? ["--cpu-prof", `--cpu-prof-dir=${process.env.BENCH_CPU_PROF}`] : [];
+  const app = spawn(process.execPath, [...profile, "node_modules/next/dist/bin/next", "start", "-H", "127.0.0.1", "-p", String(PORT)], {
     env: { ...process.env, NODE_ENV: "production" },
     stdio: ["ignore", "ignore", "inherit"],
   });
   try {
     await waitForApp();
     const auth = (t: string) => ({ authorization: `Bearer ${t}` });
-    let next = 0;
     const runs = [
+      // The peer in the same run: what the framework alone answers on this machine now (no token, no database).
+      { name: "Peer: the OpenAPI document (no token, no database)", path: "/api/v1/openapi.json", headers: {} },
       { name: "Findings list (40 findings)", path: `/api/v1/inspections/${plant.a.inspectionId}/findings?limit=100`, headers: auth(reader) },
       { name: "Job page's data", path: `/api/v1/jobs/${plant.a.jobId}`, headers: auth(reader) },
       {
-        name: "Finding decision",
-        method: "POST" as const,
-        path: "/",
-        headers: { ...auth(reviewer), "content-type": "application/json" },
-        setupRequest: (req: { path: string; body?: string }) => {
-          const id = ids[next++ % ids.length];
-          req.path = `/api/v1/inspections/${plant.b.inspectionId}/findings/${id}/decision`;
-          req.body = JSON.stringify({ decision: "rejected", reason: "no_defect", version: 0 });
-          return req;
-        },
+        name: "Finding decision (accept, then reject, with the version last seen)",
+        requests: decisionRequests(sheets, auth(reviewer)),
       },
     ];
     // Warm the routes so the first compiled-on-demand request is not measured.
-    for (const r of runs.slice(0, 2)) await autocannon({ url: BASE + r.path, headers: r.headers, connections: 5, duration: 2 });
+    for (const r of runs) if ("path" in r) await autocannon({ url: BASE + r.path, headers: r.headers, connections: 5, duration: 2 });
     const rows: string[] = [];
+    const loadBefore = os.loadavg().map((l) => l.toFixed(2)).join(" ");
     for (const r of runs) {
       const result = await autocannon({
         url: BASE,
         connections: CONNECTIONS,
         duration: DURATION_S,
-        requests: [{ method: r.method ?? "GET", path: r.path, headers: r.headers, ...(r.setupRequest ? { setupRequest: r.setupRequest } : {}) }] as never,
+        requests: "requests" in r ? r.requests : [{ method: "GET", path: r.path, headers: r.headers }],
       });
       const errors = result.errors + result.timeouts + result.non2xx;
+      const codes = Object.entries((result.statusCodeStats ?? {}) as Record<string, { count: number }>).map(([code, s]) => `${code}: ${s.count}`).join(", ");
+      console.log(`${r.name}: status codes ${codes}`);
       const p95 = (result.latency as unknown as Record<string, number>).p95 ?? result.latency.p97_5;
       rows.push(
         `| ${r.name} | ${result.latency.p50} | ${p95} | ${result.latency.p99} | ${Math.round(result.requests.average)} | ${result.requests.total} | ${errors} | ${p95 < 100 && errors === 0 ? "met" : "missed"} |`,
@@ -102,7 +90,7 @@ async function main() {
       MARK_START,
       "## API under load: 50 concurrent clients, 30 s each, production build on loopback",
       "",
-      `Measured ${new Date().toISOString()} on ${os.cpus().length} cores (${os.cpus()[0]?.model ?? "unknown CPU"}), Node ${process.version}, the app in one process,`,
+      `Measured ${new Date().toISOString()} (load average ${loadBefore} before, ${os.loadavg().map((l) => l.toFixed(2)).join(" ")} after; the machine is shared) on ${os.cpus().length} cores (${os.cpus()[0]?.model ?? "unknown CPU"}), Node ${process.version}, the app in one process,`,
       "MariaDB, Redis and the S3 fake on the same machine; autocannon 9 (`npm run bench:load`). Bearer tokens; latency in ms.",
       "Target: p95 < 100 ms and no errors (errors = connection errors, timeouts and non-2xx answers).",
       "",

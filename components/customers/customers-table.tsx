@@ -1,15 +1,13 @@
 "use client";
 // Customers as a server-paginated table; search, sort and page in the URL.
-import { keepPreviousData, useQuery } from "@tanstack/react-query";
 import { createColumnHelper } from "@tanstack/react-table";
 import Link from "next/link";
 import { DataTable, features, type Columns } from "@/components/tables/data-table";
-import { fetchJson, useListParams } from "@/components/tables/use-list-params";
+import { useServerList } from "@/components/tables/use-server-list";
 import { inputClass, quietButtonClass } from "@/components/ui/field";
 import { LocalTime } from "@/components/ui/local-time";
 import type { CustomerListItem } from "@/lib/customers/customers";
 import { CUSTOMER_SORTS } from "@/lib/customers/schema";
-import type { Page } from "@/lib/validation";
 
 const helper = createColumnHelper<typeof features, CustomerListItem>();
 const columns: Columns<CustomerListItem> = [
@@ -48,16 +46,7 @@ const columns: Columns<CustomerListItem> = [
 ];
 
 export function CustomersTable() {
-  const { params, set } = useListParams();
-  const sort = CUSTOMER_SORTS.includes(params.sort as (typeof CUSTOMER_SORTS)[number]) ? params.sort : "name";
-  const dir = params.dir === "desc" ? "desc" : "asc";
-  const page = Math.max(1, Number(params.page) || 1);
-  const query = new URLSearchParams({ sort, dir, page: String(page), pageSize: "20", ...(params.q ? { q: params.q } : {}) });
-  const result = useQuery({
-    queryKey: ["customers", query.toString()],
-    queryFn: () => fetchJson<Page<CustomerListItem>>(`/api/customers?${query}`),
-    placeholderData: keepPreviousData,
-  });
+  const { params, set, table } = useServerList<CustomerListItem>({ key: "customers", url: "/api/customers", sorts: CUSTOMER_SORTS, defaultSort: "name", defaultDir: "asc", filters: ["q"] });
   return (
     <div className="space-y-3">
       <form
@@ -86,19 +75,8 @@ export function CustomersTable() {
       <DataTable
         label="Customers"
         columns={columns}
-        rows={result.data?.rows}
         rowKey={(r) => String(r.id)}
-        sortable={CUSTOMER_SORTS}
-        sort={sort}
-        dir={dir}
-        onSort={(column, direction) => set({ sort: column, dir: direction })}
-        page={page}
-        pageSize={20}
-        total={result.data?.total ?? 0}
-        onPage={(p) => set({ page: p }, true)}
-        loading={result.isFetching}
-        error={result.error}
-        onRetry={() => void result.refetch()}
+        {...table}
         empty={params.q ? "No customer matches this name." : "No customers yet. Create the first one."}
         wideOnly={["updated"]}
       />

@@ -1,31 +1,20 @@
 "use client";
 // The plant's jobs (or a customer's own) as a server-paginated table; search, status, sort and page in the URL.
-import { keepPreviousData, useQuery } from "@tanstack/react-query";
 import { createColumnHelper } from "@tanstack/react-table";
 import Link from "next/link";
 import { useMemo } from "react";
 import { DataTable, features, type Columns } from "@/components/tables/data-table";
-import { fetchJson, useListParams } from "@/components/tables/use-list-params";
+import { useServerList } from "@/components/tables/use-server-list";
 import { inputClass, quietButtonClass } from "@/components/ui/field";
 import { LocalTime } from "@/components/ui/local-time";
 import type { JobRow } from "@/lib/jobs/jobs";
 import { JOB_SORTS, STATUS_LABELS, type JobStatus } from "@/lib/jobs/schema";
-import type { Page } from "@/lib/validation";
 import { JobStatusBadge } from "./status-badge";
 
 const helper = createColumnHelper<typeof features, JobRow>();
 
 export function JobsTable({ showCustomer }: { showCustomer: boolean }) {
-  const { params, set } = useListParams();
-  const sort = JOB_SORTS.includes(params.sort as (typeof JOB_SORTS)[number]) ? params.sort : "updated";
-  const dir = params.dir === "asc" ? "asc" : "desc";
-  const page = Math.max(1, Number(params.page) || 1);
-  const query = new URLSearchParams({ sort, dir, page: String(page), pageSize: "20", ...(params.q ? { q: params.q } : {}), ...(params.status ? { status: params.status } : {}) });
-  const result = useQuery({
-    queryKey: ["jobs", query.toString()],
-    queryFn: () => fetchJson<Page<JobRow>>(`/api/jobs?${query}`),
-    placeholderData: keepPreviousData,
-  });
+  const { params, set, table } = useServerList<JobRow>({ key: "jobs", url: "/api/jobs", sorts: JOB_SORTS, defaultSort: "updated", defaultDir: "desc", filters: ["q", "status"] });
   const columns = useMemo(() => {
     const list: Columns<JobRow> = [
       helper.accessor("jobNumber", {
@@ -99,19 +88,8 @@ export function JobsTable({ showCustomer }: { showCustomer: boolean }) {
       <DataTable
         label="Jobs"
         columns={columns}
-        rows={result.data?.rows}
         rowKey={(r) => String(r.id)}
-        sortable={JOB_SORTS}
-        sort={sort}
-        dir={dir}
-        onSort={(column, direction) => set({ sort: column, dir: direction })}
-        page={page}
-        pageSize={20}
-        total={result.data?.total ?? 0}
-        onPage={(p) => set({ page: p }, true)}
-        loading={result.isFetching}
-        error={result.error}
-        onRetry={() => void result.refetch()}
+        {...table}
         empty={params.q || params.status ? "No job matches these filters." : "There are no jobs you can see yet."}
         wideOnly={["updated", "openSheetCount"]}
       />

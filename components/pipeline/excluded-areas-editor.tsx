@@ -1,15 +1,18 @@
 "use client";
-// Excluded areas of one artwork revision, shown on a picture of its page as they are typed in millimetres
-// (drawing them with the pointer is not there yet). "In every up" areas are measured from the up's top-left and drawn in every up.
-// Editable while the revision is a draft; locked once approved.
-import { useEffect, useState } from "react";
+// Excluded areas of one artwork revision on a picture of its page: dragged with the pointer on the picture (mouse,
+// pen or finger) or typed in millimetres, then editable and removable in the list. "In every up" areas are
+// measured from the up's top-left and drawn in every up. Editable while the revision is a draft; locked once
+// approved.
+import { useEffect, useRef, useState, type PointerEvent } from "react";
 import { inputClass, quietButtonClass, buttonClass } from "@/components/ui/field";
 import { Notice } from "@/components/ui/notice";
 import type { ExcludedArea } from "@/db/schema";
+import { drawnArea, pointerToMm, spanned } from "@/lib/pipeline/draw-area";
 import { expandExcludedAreas, upRect } from "@/lib/pipeline/excluded-areas";
 import type { RevisionView } from "@/lib/pipeline/view";
 import { errorMessageOf } from "./send-form";
 
+type Point = { x: number; y: number };
 
 function PagePicture({ revision, onLoaded }: { revision: RevisionView; onLoaded: () => void }) {
   const [attempt, setAttempt] = useState(0);
@@ -43,6 +46,9 @@ export function ExcludedAreasEditor({ revision, editable, refresh }: { revision:
   const [saving, setSaving] = useState(false);
   const [loaded, setLoaded] = useState(false);
   const [notice, setNotice] = useState<{ tone: "ok" | "error"; text: string } | null>(null);
+  const [drawScope, setDrawScope] = useState<ExcludedArea["scope"]>(revision.upsRows * revision.upsColumns > 1 ? "up" : "sheet");
+  const [drag, setDrag] = useState<{ start: Point; end: Point } | null>(null);
+  const surface = useRef<SVGSVGElement>(null);
   const saved = JSON.stringify(revision.excludedAreas);
   const [base, setBase] = useState(saved);
   if (base !== saved) {
@@ -79,6 +85,27 @@ export function ExcludedAreasEditor({ revision, editable, refresh }: { revision:
     } else setNotice({ tone: "error", text: errorMessageOf(body) });
   }
 
+  const at = (e: PointerEvent<SVGSVGElement>) => pointerToMm(e.clientX, e.clientY, surface.current!.getBoundingClientRect(), page);
+  const drawing = editable
+    ? {
+        onPointerDown: (e: PointerEvent<SVGSVGElement>) => {
+          if (e.button !== 0) return;
+          e.currentTarget.setPointerCapture(e.pointerId);
+          const p = at(e);
+          setDrag({ start: p, end: p });
+        },
+        onPointerMove: (e: PointerEvent<SVGSVGElement>) => drag && setDrag({ ...drag, end: at(e) }),
+        onPointerUp: (e: PointerEvent<SVGSVGElement>) => {
+          if (!drag) return;
+          const area = drawnArea(drag.start, at(e), drawScope, ups, page);
+          setDrag(null);
+          if (area) setAreas((list) => [...list, area]);
+        },
+        onPointerCancel: () => setDrag(null),
+      }
+    : {};
+  const dragged = drag ? spanned(drag.start, drag.end) : null;
+
   const shown = expandExcludedAreas(areas, ups, page);
   const stroke = Math.max(W, H) / 400;
   return (
@@ -89,9 +116,11 @@ export function ExcludedAreasEditor({ revision, editable, refresh }: { revision:
             <PagePicture revision={revision} onLoaded={() => setLoaded(true)} />
             {!loaded && <p className="absolute inset-x-0 top-1/2 text-center text-xs text-ink-muted">Loading the page picture…</p>}
             <svg
+              ref={surface}
+              {...drawing}
               viewBox={`0 0 ${W} ${H}`}
               preserveAspectRatio="none"
-              className="absolute inset-0 h-full w-full"
+              className={`absolute inset-0 h-full w-full ${editable ? "cursor-crosshair touch-none" : ""}`}
               role="img"
               aria-label={`Page ${W} × ${H} mm with ${ups.rows * ups.columns} ups and ${areas.length} excluded areas`}
             >
@@ -107,8 +136,21 @@ export function ExcludedAreasEditor({ revision, editable, refresh }: { revision:
               {shown.map((r, i) => (
                 <rect key={i} x={r.x} y={r.y} width={r.w} height={r.h} fill="#8a5a00" fillOpacity={0.25} stroke="#8a5a00" strokeWidth={stroke} />
               ))}
+              {dragged && <rect x={dragged.x} y={dragged.y} width={dragged.w} height={dragged.h} fill="#8a5a00" fillOpacity={0.15} stroke="#8a5a00" strokeWidth={stroke} strokeDasharray={`${stroke * 3} ${stroke * 2}`} />}
             </svg>
           </div>
+          {editable && (
+            <div className="flex flex-wrap items-center gap-x-3 gap-y-1 text-xs">
+              <span className="text-ink-muted">Drag on the page to draw an area.</span>
+              <label className="flex items-center gap-1">
+                <span className="font-medium">New areas cover</span>
+                <select className="rounded-md border border-rule bg-surface px-2 py-0.5" value={drawScope} onChange={(e) => setDrawScope(e.target.value as ExcludedArea["scope"])}>
+                  <option value="up">every up (drawn in one)</option>
+                  <option value="sheet">the sheet only</option>
+                </select>
+              </label>
+            </div>
+          )}
           <p className="text-xs text-ink-muted">
             {W} × {H} mm, {ups.rows * ups.columns} up{ups.rows * ups.columns === 1 ? "" : "s"}. Nothing is reported inside an excluded area: keep them to the variable data.
           </p>
@@ -116,7 +158,7 @@ export function ExcludedAreasEditor({ revision, editable, refresh }: { revision:
         <div className="space-y-3">
           <h4 className="text-sm font-semibold">Excluded areas {editable ? "" : "(locked with the approval)"}</h4>
           {areas.length === 0 ? (
-            <p className="text-sm text-ink-muted">{editable ? "None yet. Add one and type its position; it appears on the page." : "None: the whole page was compared."}</p>
+            <p className="text-sm text-ink-muted">{editable ? "None yet. Drag on the page, or add one and type its position." : "None: the whole page was compared."}</p>
           ) : (
             <ol className="space-y-3">
               {areas.map((a, i) => (

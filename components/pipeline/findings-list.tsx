@@ -1,15 +1,8 @@
 "use client";
 // The findings of one inspected sheet, with the artwork, scan and difference crops side by side.
 import { useQuery } from "@tanstack/react-query";
+import { KIND_LABELS as kindLabel } from "@/components/review/labels";
 import type { FindingView } from "@/lib/pipeline/inspections";
-
-const kindLabel: Record<FindingView["kind"], string> = {
-  extra_ink: "Extra ink",
-  missing_ink: "Missing ink",
-  colour_shift: "Colour shift",
-  changed_text: "Changed text or linework",
-  streak: "Streak or scratch",
-};
 
 export function FindingsList({ inspectionId }: { inspectionId: number }) {
   const { data, error, isPending } = useQuery({

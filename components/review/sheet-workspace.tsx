@@ -2,6 +2,7 @@
 // The sheet page's client side: the viewer, the findings list with the selected finding's decision, and the
 // sign-off. Keyboard: N next, P previous, A accept, R reject (not while typing in a field).
 import { QueryClient, QueryClientProvider, useQuery, useQueryClient } from "@tanstack/react-query";
+import { useRouter } from "next/navigation";
 import { useCallback, useEffect, useMemo, useState } from "react";
 import type { SheetView } from "@/lib/review/sheet";
 import { DeepZoom } from "./deep-zoom";
@@ -27,6 +28,12 @@ function Workspace({ initial }: { initial: SheetView }) {
     refetchInterval: (q) => (q.state.data?.tiles?.status === "pending" || q.state.data?.status !== "done" ? 3000 : false),
   });
   const refresh = useCallback(() => void client.invalidateQueries({ queryKey: key }), [client, key]);
+  const router = useRouter();
+  // A signature or a reopening changes the page's header (the verdict) too, which the server renders.
+  const afterSignoff = useCallback(() => {
+    refresh();
+    router.refresh();
+  }, [refresh, router]);
   const firstPending = sheet.findings.find((f) => f.decision === "pending") ?? sheet.findings[0];
   const [selectedId, setSelectedId] = useState<number | null>(firstPending?.id ?? null);
   const index = sheet.findings.findIndex((f) => f.id === selectedId);
@@ -131,7 +138,7 @@ function Workspace({ initial }: { initial: SheetView }) {
               </>
             )}
           </section>
-          <SignoffPanel sheet={sheet} onChanged={refresh} />
+          <SignoffPanel sheet={sheet} onChanged={afterSignoff} />
         </div>
       </div>
     </div>

@@ -11,6 +11,8 @@ export interface ActionState {
   /** A secret shown once after it was made (a new API token); never echoed again. */
   secret?: string;
   error?: string;
+  /** The refusal's stable code (AppError.code), e.g. "forbidden" or "not_found". */
+  code?: string;
   fieldErrors?: Record<string, string[] | undefined>;
   /** The submitted values, echoed back so a refused form keeps what was typed. */
   values?: Record<string, string>;
@@ -52,7 +54,7 @@ export function protectedAction<S extends z.ZodType>(
       if (options.resource) authorize(actor, options.action, await options.resource(parsed.data));
       return (await run(parsed.data, actor)) ?? {};
     } catch (error) {
-      if (error instanceof AppError) return { error: error.message, fieldErrors: error.fieldErrors, values: echo(formData) };
+      if (error instanceof AppError) return { error: error.message, code: error.code, fieldErrors: error.fieldErrors, values: echo(formData) };
       throw error;
     }
   };

@@ -35,33 +35,43 @@ export type Action =
   /** Create and revoke one's own API tokens (every signed-in user; ownership is checked by lib/auth/tokens.ts). */
   | "api_token.manage";
 
-export const ACTIONS: readonly Action[] = [
-  "job.read",
-  "job.create",
-  "job.update",
-  "customer.manage",
-  "artwork.upload",
-  "artwork.approve",
-  "scan.upload",
-  "inspection.read",
-  "inspection.retry",
-  "finding.decide",
-  "sheet.signoff",
-  "sheet.reopen",
-  "user.manage",
-  "settings.manage",
-  "audit.read",
-  "api_token.manage",
-];
+/**
+ * Whose data an action touches: "job" — one job's data (customer users only their own customer's jobs, so the
+ * resource must be named); "plant" — the plant's own records (customers, users, settings, the whole audit trail);
+ * "own" — the actor's own records (their API tokens; lib/auth/tokens.ts checks the ownership).
+ */
+export type Scope = "job" | "plant" | "own";
 
-/** What each staff role may do. Admin may do everything; customers are handled apart (their own jobs only). */
-const staffGrants: Record<Exclude<Role, "admin" | "customer">, ReadonlySet<Action>> = {
-  prepress: new Set(["job.read", "job.create", "job.update", "customer.manage", "artwork.upload", "artwork.approve", "inspection.read"]),
-  qa: new Set(["job.read", "scan.upload", "inspection.read", "inspection.retry"]),
-  reviewer: new Set(["job.read", "inspection.read", "finding.decide", "sheet.signoff"]),
+export interface Rule {
+  roles: readonly Role[];
+  scope: Scope;
+}
+
+/**
+ * THE policy table: role × action × whose data. DEVELOPERS.md ("Who may do what") shows the same table and
+ * tests/api/authorization-matrix.test.ts reads it from there and checks it equals this one, then calls every route
+ * handler and server action against it.
+ */
+export const POLICY: Record<Action, Rule> = {
+  "job.read": { roles: ["admin", "prepress", "qa", "reviewer", "customer"], scope: "job" },
+  "job.create": { roles: ["admin", "prepress"], scope: "plant" },
+  "job.update": { roles: ["admin", "prepress"], scope: "job" },
+  "customer.manage": { roles: ["admin", "prepress"], scope: "plant" },
+  "artwork.upload": { roles: ["admin", "prepress"], scope: "job" },
+  "artwork.approve": { roles: ["admin", "prepress"], scope: "job" },
+  "scan.upload": { roles: ["admin", "qa"], scope: "job" },
+  "inspection.read": { roles: ["admin", "prepress", "qa", "reviewer", "customer"], scope: "job" },
+  "inspection.retry": { roles: ["admin", "qa"], scope: "job" },
+  "finding.decide": { roles: ["admin", "reviewer"], scope: "job" },
+  "sheet.signoff": { roles: ["admin", "reviewer"], scope: "job" },
+  "sheet.reopen": { roles: ["admin"], scope: "job" },
+  "user.manage": { roles: ["admin"], scope: "plant" },
+  "settings.manage": { roles: ["admin"], scope: "plant" },
+  "audit.read": { roles: ["admin"], scope: "plant" },
+  "api_token.manage": { roles: ["admin", "prepress", "qa", "reviewer", "customer"], scope: "own" },
 };
 
-const customerGrants: ReadonlySet<Action> = new Set(["job.read", "inspection.read"]);
+export const ACTIONS = Object.keys(POLICY) as readonly Action[];
 
 /** Job-scoped resources carry the customer they belong to. */
 export interface Resource {
@@ -69,29 +79,15 @@ export interface Resource {
 }
 
 /**
- * May `actor` do `action` (on `resource`)? For a customer user the resource is required and must belong to
- * their own customer: without one the answer is no, so a list must be filtered by customer instead.
- * Staff roles act on every customer's jobs.
+ * May `actor` do `action` (on `resource`)? The role must be in the action's row of POLICY. For a customer user and
+ * a job-scoped action the resource is required and must belong to their own customer: without one the answer is
+ * no, so a list must be filtered by customer instead. Staff roles act on every customer's jobs.
  */
 export function can(actor: Actor, action: Action, resource?: Resource): boolean {
-  if (action === "api_token.manage") return true;
-  switch (actor.role) {
-    case "admin":
-      return true;
-    case "customer":
-      return (
-        customerGrants.has(action) &&
-        actor.customerId !== null &&
-        resource !== undefined &&
-        resource.customerId === actor.customerId
-      );
-    case "prepress":
-    case "qa":
-    case "reviewer":
-      return staffGrants[actor.role].has(action);
-    default:
-      return false;
-  }
+  const rule = POLICY[action];
+  if (!rule || !rule.roles.includes(actor.role)) return false;
+  if (actor.role !== "customer" || rule.scope !== "job") return true;
+  return actor.customerId !== null && resource !== undefined && resource.customerId === actor.customerId;
 }
 
 /** Like `can`, but throws the 403 AppError `forbidden()` instead of returning false. */

@@ -2,7 +2,7 @@
 // so a copy of the database does not hand out working tokens. A token acts with its user's current role: a
 // disabled user, a revoked or an expired token is refused alike. No "server-only": the CLI and tests use this.
 import { createHash, randomBytes } from "node:crypto";
-import { and, desc, eq } from "drizzle-orm";
+import { and, desc, eq, isNull, lte, or } from "drizzle-orm";
 import { db } from "../../db/client";
 import { apiTokens, users } from "../../db/schema";
 import { recordAudit } from "../audit";
@@ -99,9 +99,15 @@ export async function checkApiToken(token: string): Promise<TokenCheck> {
   if (user.disabled) return { ok: false, reason: "user_disabled", userId: user.id };
   const now = new Date();
   if (!t.lastUsedAt || now.getTime() - t.lastUsedAt.getTime() >= LAST_USE_GRANULARITY_MS) {
+    // Many requests of one scanner station arrive together: only the one whose update still finds the old
+    // last use records it, so the trail gets one "token used" a minute, not one per request in flight.
+    const stale = new Date(now.getTime() - LAST_USE_GRANULARITY_MS);
     await db.transaction(async (tx) => {
-      await tx.update(apiTokens).set({ lastUsedAt: now }).where(and(eq(apiTokens.id, t.id)));
-      await recordAudit(tx, { actorId: user.id, action: "api_token.use", subjectType: "api_token", subjectId: t.id });
+      const [result] = await tx
+        .update(apiTokens)
+        .set({ lastUsedAt: now })
+        .where(and(eq(apiTokens.id, t.id), or(isNull(apiTokens.lastUsedAt), lte(apiTokens.lastUsedAt, stale))));
+      if (result.affectedRows === 1) await recordAudit(tx, { actorId: user.id, action: "api_token.use", subjectType: "api_token", subjectId: t.id });
     });
   }
   return {

@@ -28,6 +28,8 @@ export interface CoarseResult {
   runnerUp: number;
   /** Other placements at the same angle (local maxima away from the peak) scoring within ALTERNATIVE_GAP of it, best first. */
   alternatives: { map: Affine; score: number }[];
+  /** The best placement of each other quarter turn placed on the finer level, best first. */
+  otherTurns: { map: Affine; score: number }[];
 }
 
 /** Other local maxima kept as alternative placements when they score within this of the best (at most MAX_ALTERNATIVES). */
@@ -67,6 +69,7 @@ export function coarsePlacement(cv: OpenCv, art: GreyLevel, scan: GreyLevel, rat
   return withMats((keep) => {
     const place = placer(cv, keep, art, scan, ratio);
     let best: CoarseResult | null = null;
+    const picks: CoarseResult[] = [];
     for (const { angle } of quarters) {
       // The sweep's estimate can be a degree or more out (a 3° step over a narrow peak): step on from it until
       // the best angle has a lower one either side, then refine with a parabola through the three and place
@@ -87,9 +90,11 @@ export function coarsePlacement(cv: OpenCv, art: GreyLevel, scan: GreyLevel, rat
         const refined = place(angle + (i + off) * STEP);
         if (refined.score >= pick.score - 0.02) pick = refined;
       }
+      picks.push(pick);
       if (!best || pick.score > best.score) best = pick;
     }
-    return best!;
+    const otherTurns = picks.filter((p) => p !== best).sort((a, b) => b.score - a.score).map((p) => ({ map: p.map, score: p.score }));
+    return { ...best!, otherTurns };
   });
 }
 
@@ -135,7 +140,7 @@ function candidate(
     const py = Math.max(0, th - scan.height) + Math.ceil(0.05 * th) + 2;
     const { x, y, score, runnerUp, others } = match(cv, keep, scanMat, templ, px, py);
     const alternatives = others.map((o) => ({ map: translate(m, o.x - px, o.y - py), score: o.score }));
-    return { map: translate(m, x - px, y - py), angleDeg: deg, score, runnerUp, alternatives };
+    return { map: translate(m, x - px, y - py), angleDeg: deg, score, runnerUp, alternatives, otherTurns: [] };
   }
   // Scan, turned back, sought in the artwork padded with lid colour on every side.
   const back = invert(turn);
@@ -147,7 +152,7 @@ function candidate(
   const py = Math.max(0, th - art.height) + Math.ceil(0.3 * th) + 2;
   const { x, y, score, runnerUp, others } = match(cv, keep, artMat, templ, px, py, lid);
   const alternatives = others.map((o) => ({ map: invert(translate(n, o.x - px, o.y - py)), score: o.score }));
-  return { map: invert(translate(n, x - px, y - py)), angleDeg: deg, score, runnerUp, alternatives };
+  return { map: invert(translate(n, x - px, y - py)), angleDeg: deg, score, runnerUp, alternatives, otherTurns: [] };
 }
 
 function warp(cv: OpenCv, src: unknown, m: Affine, w: number, h: number, fill: number) {

@@ -16,7 +16,7 @@
 // The scan's resolution may differ from the artwork's: it enters as the nominal scale, and the fitted scale
 // is reported relative to it (1 = the sheet is scanned at its true size).
 import { apply, coveredRect, compose, invert, scaling, translate, type Affine } from "./align-affine";
-import { coarsePlacement } from "./align-coarse";
+import { coarsePlacement, type CoarseResult } from "./align-coarse";
 import { localField } from "./align-field";
 import { refineOnPatches } from "./align-patches";
 import { loadOpenCv, openCvMessage, withMats, type OpenCv } from "./opencv";
@@ -105,7 +105,7 @@ export async function alignScan(artwork: ArtworkRaster, scan: ScanImage, opts: A
     const m = ecc(cv, artC, scanC, start, nominal, 50).map;
     return ecc(cv, artE, scanE, m, nominal, 3);
   };
-  const first = fitEcc(map);
+  const first = firstFit(coarse, (m) => fitEcc(levelMapToFull(m, artC.k, scanC.k)));
   let { map: eccMap, rho } = first;
   // Other placements the coarse level found nearly as good (a window onto repeated ups): each is fitted as
   // the first was, and the finer level's correlation chooses; two that fit alike mean the scan cannot be placed.
@@ -207,6 +207,27 @@ function ecc(cv: OpenCv, art: GreyLevel, scan: GreyLevel, map: Affine, nominal: 
     if (!found.every(Number.isFinite) || !(det > 0) || Math.abs(Math.sqrt(det) / nominal - 1) > 0.1) throw mismatch();
     return { map: found, rho };
   });
+}
+
+/**
+ * The fit from the coarse level's best placement; when that runs off or correlates too little, the other
+ * quarter turns the coarse level placed, then its other placements at the same angle, and the best of them. A
+ * sheet of repeated ups looks much the same turned half round, and the coarse level may prefer the wrong turn
+ * by a few hundredths (correct scans of 3-up cartons were refused that way).
+ */
+function firstFit(coarse: CoarseResult, fit: (levelMap: Affine) => { map: Affine; rho: number }): { map: Affine; rho: number } {
+  let best: { map: Affine; rho: number } | null = null;
+  for (const candidate of [coarse, ...coarse.otherTurns, ...coarse.alternatives]) {
+    try {
+      const found = fit(candidate.map);
+      if (!best || found.rho > best.rho) best = found;
+    } catch (e) {
+      if (!(e instanceof ImagingError)) throw e;
+    }
+    if (best && best.rho >= MIN_CORRELATION) break;
+  }
+  if (!best) throw mismatch();
+  return best;
 }
 
 /** Two maps place the scan alike when the scan's centre lands within a few artwork pixels under both. */

@@ -3,9 +3,10 @@
 // then compare the core. Full-width bands of this keep memory bounded on a B1 sheet at 300 dpi.
 import { warpScanToArtwork } from "./align";
 import { WarpBuffers } from "./align-warp";
-import { compareBand, CompareScratch, type BandDifference } from "./compare";
+import { compareBand, CompareScratch, type BandDifference, type SheetSample } from "./compare";
 import { lowPassRgb, mapColours, type ColourModel } from "./normalise";
 import { preparedRect, type ContrastWindows } from "./prepared";
+import { removeLightField, type LightField } from "./light-field";
 import { intersect, type PxRect } from "./raster";
 import type { Alignment, RgbaImage } from "./types";
 
@@ -47,12 +48,17 @@ export interface SheetContext {
   artwork: RgbaImage;
   source: AlignedScanSource;
   model: ColourModel;
+  /** The scanner's light across the page, divided out after the colour model. */
+  light: LightField | null;
   sigmaPx: number;
   radiusPx: number;
   /** Windows of the artwork's local contrast (prepared.ts). */
   windows: ContrastWindows;
   lowDeltaE00: number;
   peakDeltaE00: number;
+  /** The sheet's edge and flat-area allowances (allowances.ts); compare.ts's defaults when absent. */
+  edgeAllowance?: number;
+  flatAllowance?: Float32Array;
   /** Inspected part of the page (covered by the scan), px. */
   inspectPx: PxRect;
   /** Excluded rectangles, px. */
@@ -72,7 +78,7 @@ export function haloPx(ctx: SheetContext): number {
   return Math.ceil(3 * ctx.sigmaPx) + ctx.radiusPx + Math.ceil(2 * ctx.sigmaPx) + 1;
 }
 
-export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = false): Promise<RectDifference> {
+export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = false, sample?: SheetSample): Promise<RectDifference> {
   const art = ctx.artwork;
   const halo = haloPx(ctx);
   const started = performance.now();
@@ -91,6 +97,7 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
   ctx.passes.lowPass += lowPassed - warped;
   const scanNormal = ctx.scratch.normalisedScan(ext.w * ext.h * 4);
   mapColours(ctx.model, scanLow, 3, scanNormal);
+  if (ctx.light) removeLightField(ctx.light, scanNormal, ext.w, ext.h, ext.x, ext.y);
   ctx.passes.colourMap += performance.now() - lowPassed;
   const inspect = inspectMask(ctx, core, ext, scanPatch.mask, Math.ceil(2 * ctx.sigmaPx) + 1);
   const mid = performance.now();
@@ -105,7 +112,7 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
   }
   const diff = compareBand(
     { width: ext.w, rows: ext.h, art: artPrepared, scan: scanNormal, coreY, coreRows: core.h, inspect: wideInspect },
-    { lowDeltaE00: ctx.lowDeltaE00, peakDeltaE00: ctx.peakDeltaE00, radiusPx: ctx.radiusPx, everyPixel },
+    { lowDeltaE00: ctx.lowDeltaE00, peakDeltaE00: ctx.peakDeltaE00, radiusPx: ctx.radiusPx, everyPixel, edgeAllowance: ctx.edgeAllowance, flatAllowance: ctx.flatAllowance, sample },
     ctx.scratch,
   );
   const compared = performance.now() - mid;
@@ -117,14 +124,16 @@ export async function processRect(ctx: SheetContext, core: PxRect, everyPixel = 
   const kind = new Uint8Array(core.w * core.h);
   const score = new Float32Array(core.w * core.h);
   const structural = new Uint8Array(core.w * core.h);
+  const shift = new Int8Array(core.w * core.h * 3);
   for (let row = 0; row < core.h; row++) {
     const from = row * ext.w + (core.x - ext.x);
     deltaE.set(diff.deltaE.subarray(from, from + core.w), row * core.w);
     kind.set(diff.kind.subarray(from, from + core.w), row * core.w);
     score.set(diff.score.subarray(from, from + core.w), row * core.w);
     structural.set(diff.structural.subarray(from, from + core.w), row * core.w);
+    shift.set(diff.shift.subarray(from * 3, (from + core.w) * 3), row * core.w * 3);
   }
-  return { ...diff, deltaE, kind, score, structural, rect: core };
+  return { ...diff, deltaE, kind, score, structural, shift, rect: core };
 }
 
 /**

@@ -17,6 +17,8 @@ import type { PreparedRect } from "./prepared";
 export const PIXEL_EXTRA_INK = 1;
 export const PIXEL_MISSING_INK = 2;
 export const PIXEL_COLOUR_SHIFT = 3;
+/** Bit of BandDifference.structural: the artwork has type or linework within the reach of this pixel. */
+export const PIXEL_ON_LINEWORK = 4;
 
 const DE00_OVER_DEAB = 1.4;
 /**
@@ -25,7 +27,7 @@ const DE00_OVER_DEAB = 1.4;
  * edges, scanner optics, JPEG chroma subsampling and the colour model's error on blended colours leave
  * 5–15 % of the edge contrast; a missing or extra stroke differs by about the whole contrast.
  */
-const EDGE_ALLOWANCE = 0.15;
+export const EDGE_ALLOWANCE = 0.15;
 /**
  * The same for a sideways move in colour (hue or chroma at the same ink): along edges that is what JPEG's
  * subsampled chroma and a scanner's colour fringes produce, while a true colour shift sits in a flat area,
@@ -65,6 +67,49 @@ export interface CompareSettings {
   radiusPx: number;
   /** Compute the tolerant ΔE00 of every pixel (difference crops) instead of screening. */
   everyPixel?: boolean;
+  /** ΔE00 forgiven per unit of local contrast for ink (default EDGE_ALLOWANCE; allowances.ts sets it per sheet). */
+  edgeAllowance?: number;
+  /** ΔE00 forgiven on flat areas, by the artwork's tone (TONE_BINS; allowances.ts): the scan's own noise there. */
+  flatAllowance?: Float32Array;
+  /** Filled with what each pixel would need forgiven (allowances.ts), when given. */
+  sample?: SheetSample;
+}
+
+/** Of some bands: what each edge pixel, and each flat pixel by tone, would need forgiven not to be flagged. */
+export interface SheetSample {
+  /** Inspected pixels with local contrast ≥ EDGE_MIN_CONTRAST. */
+  edgePixels: number;
+  /** Edge pixels by allowance needed, in steps of 1 / EDGE_SAMPLE_STEPS (the last bin holds all beyond). */
+  edgeNeeded: Float64Array;
+  /** Inspected flat pixels (local contrast below EDGE_MIN_CONTRAST) by tone bin. */
+  flatPixels: Float64Array;
+  /** Flat pixels by tone bin (rows of FLAT_SAMPLE_STEPS + 1) and tolerant ΔE00, in steps of 1 / FLAT_SAMPLE_RESOLUTION. */
+  flatDeltaE: Float64Array;
+}
+
+/**
+ * Local contrast (ΔE*ab) from which a pixel is an edge pixel: below, its tolerance is the scan's noise on flat
+ * areas; at and above, the screens skip only pixels that could need less than EDGE_ALLOWANCE.
+ */
+export const EDGE_MIN_CONTRAST = 10;
+export const EDGE_SAMPLE_STEPS = 100;
+/** Tone bins of flat areas, by the artwork's low-passed luma (R + 2G + B) / 4: paper white apart from tints and solids. */
+export const TONE_BINS = 8;
+export const FLAT_SAMPLE_RESOLUTION = 10;
+export const FLAT_SAMPLE_STEPS = 300;
+
+export function newSheetSample(): SheetSample {
+  return {
+    edgePixels: 0,
+    edgeNeeded: new Float64Array(EDGE_SAMPLE_STEPS + 1),
+    flatPixels: new Float64Array(TONE_BINS),
+    flatDeltaE: new Float64Array(TONE_BINS * (FLAT_SAMPLE_STEPS + 1)),
+  };
+}
+
+function toneBin(rgba: Uint8Array, pix: number): number {
+  const o = pix * 4;
+  return ((rgba[o] + 2 * rgba[o + 1] + rgba[o + 2]) * TONE_BINS) >> 10;
 }
 
 /** One band over the same rows of both images (core plus halo), full band width. */
@@ -88,8 +133,13 @@ export interface BandDifference {
   /** ΔE00 less the edge allowance: what the two flagging levels test. */
   score: Float32Array;
   kind: Uint8Array;
-  /** PIXEL_EXTRA_INK or PIXEL_MISSING_INK where the pixel reaches the second level within the structural allowance. */
+  /**
+   * PIXEL_EXTRA_INK or PIXEL_MISSING_INK (low two bits) where the pixel reaches the second level within the
+   * structural allowance, plus PIXEL_ON_LINEWORK where the artwork has type or linework around it.
+   */
   structural: Uint8Array;
+  /** Scan less artwork in CIELAB at the pixel itself (L*, a*, b*; 3 a pixel, rounded, ±127): whether a region's differences agree in direction. */
+  shift: Int8Array;
   flagged: number;
   candidates: number;
   /** Time spent in pixelmatch's screen (ms). */
@@ -99,7 +149,7 @@ export interface BandDifference {
 /** Reusable buffers of the comparison, used by one inspection at a time (bands.ts lends them; never shared between threads). */
 export class CompareScratch {
   private screen = new Uint8Array(0);
-  private results = { deltaE: new Float32Array(0), score: new Float32Array(0), kind: new Uint8Array(0), structural: new Uint8Array(0) };
+  private results = { deltaE: new Float32Array(0), score: new Float32Array(0), kind: new Uint8Array(0), structural: new Uint8Array(0), shift: new Int8Array(0) };
   /** Direct-mapped cache of CIELAB by 24-bit RGB: low-passed artwork and scan repeat their colours a lot. */
   readonly labKeys = new Int32Array(LAB_CACHE_SLOTS).fill(-1);
   readonly labValues = new Float32Array(LAB_CACHE_SLOTS * 3);
@@ -136,15 +186,16 @@ export class CompareScratch {
    * Zeroed per-pixel result arrays, valid until the next band: the caller consumes them before asking again.
    * Only the pixels the last band wrote (see wrote) are zeroed again: a handful, not four page-sized fills.
    */
-  result(n: number): { deltaE: Float32Array; score: Float32Array; kind: Uint8Array; structural: Uint8Array } {
+  result(n: number): { deltaE: Float32Array; score: Float32Array; kind: Uint8Array; structural: Uint8Array; shift: Int8Array } {
     let r = this.results;
     if (r.deltaE.length < n) {
-      r = this.results = { deltaE: new Float32Array(n), score: new Float32Array(n), kind: new Uint8Array(n), structural: new Uint8Array(n) };
+      r = this.results = { deltaE: new Float32Array(n), score: new Float32Array(n), kind: new Uint8Array(n), structural: new Uint8Array(n), shift: new Int8Array(n * 3) };
     } else if (this.writtenCount > this.written.length) {
       r.deltaE.fill(0);
       r.score.fill(0);
       r.kind.fill(0);
       r.structural.fill(0);
+      r.shift.fill(0);
     } else {
       for (let j = 0; j < this.writtenCount; j++) {
         const i = this.written[j];
@@ -152,10 +203,11 @@ export class CompareScratch {
         r.score[i] = 0;
         r.kind[i] = 0;
         r.structural[i] = 0;
+        r.shift[i * 3] = r.shift[i * 3 + 1] = r.shift[i * 3 + 2] = 0;
       }
     }
     this.writtenCount = 0;
-    return { deltaE: r.deltaE.subarray(0, n), score: r.score.subarray(0, n), kind: r.kind.subarray(0, n), structural: r.structural.subarray(0, n) };
+    return { deltaE: r.deltaE.subarray(0, n), score: r.score.subarray(0, n), kind: r.kind.subarray(0, n), structural: r.structural.subarray(0, n), shift: r.shift.subarray(0, n * 3) };
   }
   private written = new Int32Array(1 << 16);
   private writtenCount = 0;
@@ -172,7 +224,7 @@ const LAB_CACHE_SLOTS = 1 << 16;
 export function compareBand(band: BandPair, settings: CompareSettings, scratch: CompareScratch): BandDifference {
   const { width, rows, coreY, coreRows, art } = band;
   const n = width * coreRows;
-  const { deltaE, kind, score, structural } = scratch.result(n);
+  const { deltaE, kind, score, structural, shift } = scratch.result(n);
   if (art.low.length !== width * rows * 4 || band.scan.length !== width * rows * 4 || band.inspect.length !== n) {
     throw new RangeError(`Band buffers do not match ${width} × ${rows} px with ${coreRows} core rows.`);
   }
@@ -180,7 +232,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
   const coreStart = coreY * width * 4;
   let screen: Uint8Array | null = null;
   let screenMs = 0;
-  if (!settings.everyPixel) {
+  if (!settings.everyPixel && !settings.sample) {
     screen = scratch.screenBuffer(n * 4);
     // Set on the second level: a region is kept only for pixels that reach it, and set on the first the
     // screen would pass nearly every pixel of a noisy scan.
@@ -198,7 +250,7 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
     screenMs = performance.now() - screenStarted;
     if (count === 0) {
       scratch.screenClean = true;
-      return { deltaE, score, kind, structural, flagged: 0, candidates: 0, screenMs };
+      return { deltaE, score, kind, structural, shift, flagged: 0, candidates: 0, screenMs };
     }
   }
   const r = settings.radiusPx;
@@ -211,6 +263,9 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
   const bound = (low / DE00_OVER_DEAB) ** 2;
   const peak = settings.peakDeltaE00;
   const inspect = band.inspect;
+  const edgeAllowance = settings.edgeAllowance ?? EDGE_ALLOWANCE;
+  const sample = settings.sample;
+  const flatAllowance = settings.flatAllowance;
   let flagged = 0;
   let candidates = 0;
   for (let cy = 0; cy < coreRows; cy++) {
@@ -218,6 +273,11 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
     const y0 = Math.max(0, y - r), y1 = Math.min(rows - 1, y + r);
     for (let x = 0; x < width; x++) {
       const i = cy * width + x;
+      if (sample && inspect[i] === 1) {
+        const p = y * width + x;
+        if (contrastOf[p] >= EDGE_MIN_CONTRAST) sample.edgePixels++;
+        else sample.flatPixels[toneBin(artLow, p)]++;
+      }
       if (screen !== null) {
         if (screen[i * 4 + 3] === 0) continue;
         screen[i * 4 + 3] = 0;
@@ -238,8 +298,13 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       const contrast = contrastOf[pix];
       const nearType = lightGround[pix] === 1 && contrast >= STRUCTURAL_MIN_CONTRAST;
       const bleed = wideContrast[pix];
-      const inkAllowance = EDGE_ALLOWANCE * contrast + BLEED_ALLOWANCE_INK * bleed;
-      const edgeFloor = low + inkAllowance;
+      const flat = contrast < EDGE_MIN_CONTRAST;
+      const noise = flat && flatAllowance ? flatAllowance[toneBin(artLow, pix)] : 0;
+      // Flat noise is forgiven on ink only: a colour shift is judged over its whole area (findings.ts), where
+      // noise averages out, and it may fill most of a tone (a reprinted panel).
+      const inkAllowance = edgeAllowance * contrast + BLEED_ALLOWANCE_INK * bleed + noise;
+      const colourAllowance = EDGE_ALLOWANCE_COLOUR * contrast + BLEED_ALLOWANCE_COLOUR * bleed;
+      const edgeFloor = low + Math.min(inkAllowance, colourAllowance);
       const floor = nearType ? Math.min(edgeFloor, peak + EDGE_ALLOWANCE_STRUCTURAL * contrast) : edgeFloor;
       if (DE00_OVER_DEAB * DE00_OVER_DEAB * direct < floor * floor && !everyPixel) continue;
       const x0 = Math.max(0, x - r), x1 = Math.min(width - 1, x + r);
@@ -263,13 +328,22 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
       const e = e1 > e2 ? e1 : e2;
       if (e < low && !everyPixel) continue;
       const k = classify(al, aa, ab, sl, sa, sb);
-      const s = e - (k === PIXEL_COLOUR_SHIFT ? EDGE_ALLOWANCE_COLOUR * contrast + BLEED_ALLOWANCE_COLOUR * bleed : inkAllowance);
+      if (sample && flat) {
+        sample.flatDeltaE[toneBin(artLow, pix) * (FLAT_SAMPLE_STEPS + 1) + Math.min(FLAT_SAMPLE_STEPS, Math.floor(e * FLAT_SAMPLE_RESOLUTION))]++;
+      } else if (sample && k !== PIXEL_COLOUR_SHIFT) {
+        const needed = (e - low - BLEED_ALLOWANCE_INK * bleed) / contrast;
+        if (needed > 0) sample.edgeNeeded[Math.min(EDGE_SAMPLE_STEPS, Math.floor(needed * EDGE_SAMPLE_STEPS))]++;
+      }
+      const s = e - (k === PIXEL_COLOUR_SHIFT ? colourAllowance : inkAllowance);
       // Small print is dark type on a light ground (the ground's lightness dominates around it); in type
       // reversed out of a dark solid the scan's softness fills strokes in, which looks much like a change.
       const structuralInk = k !== PIXEL_COLOUR_SHIFT && nearType && e - EDGE_ALLOWANCE_STRUCTURAL * contrast >= peak;
-      if (structuralInk) structural[i] = k;
       if (s < low && !structuralInk && !everyPixel) continue;
       scratch.wrote(i);
+      structural[i] = (structuralInk ? k : 0) | (contrast >= STRUCTURAL_MIN_CONTRAST ? PIXEL_ON_LINEWORK : 0);
+      shift[i * 3] = clamp127(sl - al);
+      shift[i * 3 + 1] = clamp127(sa - aa);
+      shift[i * 3 + 2] = clamp127(sb - ab);
       deltaE[i] = e;
       score[i] = s > 0 ? s : 0;
       if (s >= low) {
@@ -279,7 +353,11 @@ export function compareBand(band: BandPair, settings: CompareSettings, scratch: 
     }
   }
   scratch.screenClean = true;
-  return { deltaE, score, kind, structural, flagged, candidates, screenMs };
+  return { deltaE, score, kind, structural, shift, flagged, candidates, screenMs };
+}
+
+function clamp127(v: number): number {
+  return v > 127 ? 127 : v < -127 ? -127 : Math.round(v);
 }
 
 /**

@@ -2,7 +2,7 @@
 // row) so that bands of any height join up without a full-size label image; then the second level of the
 // two-level flagging (a region stays only if its peak reaches the profile's ΔE00), merging of nearby blobs,
 // the minimum area, and the up each region lies in.
-import { PIXEL_COLOUR_SHIFT, PIXEL_EXTRA_INK, PIXEL_MISSING_INK, type BandDifference } from "./compare";
+import { PIXEL_COLOUR_SHIFT, PIXEL_EXTRA_INK, PIXEL_MISSING_INK, PIXEL_ON_LINEWORK, type BandDifference } from "./compare";
 import { pxToMm } from "./raster";
 import type { Finding, FindingKind, RectMm, UpsLayout } from "./types";
 
@@ -23,6 +23,13 @@ export interface Region {
   votes: [number, number, number];
   /** Pixels reaching the second level within the structural allowance: extra ink, missing ink. */
   structural: [number, number];
+  /** Sum of the pixels' scan − artwork CIELAB vectors, and of their lengths (coherence, see COLOUR_COHERENCE). */
+  shiftSum: [number, number, number];
+  shiftLength: number;
+  /** Pixels where the artwork has type or linework around them. */
+  onLinework: number;
+  /** Sums of x, y, x², y², x·y over the region's pixels (its shape: streaks are long and thin). */
+  moments: [number, number, number, number, number];
 }
 
 /** Labels flagged pixels band after band (rows in page order), 8-connected. */
@@ -36,16 +43,29 @@ export class RegionCollector {
   private runStrong: number[] = [];
   private runVotes: number[] = [];
   private runStructural: number[] = [];
+  private runShift: number[] = [];
+  private runLinework: number[] = [];
   private parent: number[] = [];
   private prevStart = 0;
   private prevEnd = 0;
   private lastRow = -2;
 
-  /** `peakLevel`: the second level of the two-level flagging, counted per region. */
+  /**
+   * `peakLevel`: the second level of the two-level flagging, counted per region. `colourShifts`: collect only
+   * colour-shift pixels (true), only the others (false), or all (undefined). Apart, a dark solid's beating
+   * screen (a region of colour differences pointing every way, see COLOUR_COHERENCE) cannot swallow the speck
+   * of ink inside it.
+   */
   constructor(
     private readonly width: number,
     private readonly peakLevel = Infinity,
+    private readonly colourShifts?: boolean,
   ) {}
+
+  private takes(deltaE: number, kind: number): boolean {
+    if (deltaE === 0) return false;
+    return this.colourShifts === undefined || (kind === PIXEL_COLOUR_SHIFT) === this.colourShifts;
+  }
 
   get runCount(): number {
     return this.runY.length;
@@ -53,7 +73,7 @@ export class RegionCollector {
 
   /** Adds the core rows of one band; `pageY` is the page row of its first core row, `pageX` its first column. */
   addBand(diff: BandDifference, rows: number, pageY: number, pageX = 0, bandWidth = this.width): void {
-    const { deltaE, kind, score, structural } = diff;
+    const { deltaE, kind, score, structural, shift } = diff;
     for (let row = 0; row < rows; row++) {
       const y = pageY + row;
       if (y !== this.lastRow + 1) this.prevStart = this.prevEnd = this.runY.length;
@@ -61,10 +81,10 @@ export class RegionCollector {
       const base = row * bandWidth;
       let x = 0;
       while (x < bandWidth) {
-        if (deltaE[base + x] === 0) { x++; continue; }
+        if (!this.takes(deltaE[base + x], kind[base + x])) { x++; continue; }
         const start = x;
-        let sum = 0, max = 0, top = 0, strong = 0, v1 = 0, v2 = 0, v3 = 0, s1 = 0, s2 = 0;
-        while (x < bandWidth && deltaE[base + x] !== 0) {
+        let sum = 0, max = 0, top = 0, strong = 0, v1 = 0, v2 = 0, v3 = 0, s1 = 0, s2 = 0, dl = 0, da = 0, db = 0, len = 0, lw = 0;
+        while (x < bandWidth && this.takes(deltaE[base + x], kind[base + x])) {
           const e = deltaE[base + x];
           const sc = score[base + x];
           if (sc > top) top = sc;
@@ -72,8 +92,11 @@ export class RegionCollector {
           sum += e;
           if (e > max) max = e;
           const st = structural[base + x];
-          if (st === PIXEL_EXTRA_INK) s1++;
-          else if (st === PIXEL_MISSING_INK) s2++;
+          if ((st & 3) === PIXEL_EXTRA_INK) s1++;
+          else if ((st & 3) === PIXEL_MISSING_INK) s2++;
+          if (st & PIXEL_ON_LINEWORK) lw++;
+          const o = (base + x) * 3, sx = shift[o], sy = shift[o + 1], sz = shift[o + 2];
+          dl += sx; da += sy; db += sz; len += Math.sqrt(sx * sx + sy * sy + sz * sz);
           const k = kind[base + x];
           if (k === PIXEL_EXTRA_INK) v1 += e;
           else if (k === PIXEL_MISSING_INK) v2 += e;
@@ -82,7 +105,7 @@ export class RegionCollector {
         }
         const id = this.runY.length;
         this.runX0.push(pageX + start); this.runX1.push(pageX + x); this.runY.push(y);
-        this.runSum.push(sum); this.runMax.push(max); this.runScore.push(top); this.runStrong.push(strong); this.runVotes.push(v1, v2, v3); this.runStructural.push(s1, s2);
+        this.runSum.push(sum); this.runMax.push(max); this.runScore.push(top); this.runStrong.push(strong); this.runVotes.push(v1, v2, v3); this.runStructural.push(s1, s2); this.runShift.push(dl, da, db, len); this.runLinework.push(lw);
         this.parent.push(id);
       }
       this.joinRows(this.prevStart, this.prevEnd, rowStart, this.runY.length);
@@ -120,7 +143,7 @@ export class RegionCollector {
       const root = this.find(i);
       let r = byRoot.get(root);
       if (!r) {
-        r = { x0: Infinity, y0: Infinity, x1: -Infinity, y1: -Infinity, count: 0, sumDeltaE: 0, maxDeltaE: 0, maxScore: 0, strongCount: 0, votes: [0, 0, 0], structural: [0, 0] };
+        r = { x0: Infinity, y0: Infinity, x1: -Infinity, y1: -Infinity, count: 0, sumDeltaE: 0, maxDeltaE: 0, maxScore: 0, strongCount: 0, votes: [0, 0, 0], structural: [0, 0], shiftSum: [0, 0, 0], shiftLength: 0, onLinework: 0, moments: [0, 0, 0, 0, 0] };
         byRoot.set(root, r);
       }
       r.x0 = Math.min(r.x0, this.runX0[i]); r.x1 = Math.max(r.x1, this.runX1[i]);
@@ -133,6 +156,14 @@ export class RegionCollector {
       for (let k = 0; k < 3; k++) r.votes[k] += this.runVotes[i * 3 + k];
       r.structural[0] += this.runStructural[i * 2];
       r.structural[1] += this.runStructural[i * 2 + 1];
+      for (let k = 0; k < 3; k++) r.shiftSum[k] += this.runShift[i * 4 + k];
+      r.shiftLength += this.runShift[i * 4 + 3];
+      r.onLinework += this.runLinework[i];
+      // A run of n pixels x0 … x1 − 1 on row y, in closed form.
+      const a = this.runX0[i], n = this.runX1[i] - a, y = this.runY[i];
+      const sx = n * a + (n * (n - 1)) / 2, sxx = n * a * a + a * n * (n - 1) + ((n - 1) * n * (2 * n - 1)) / 6;
+      const m = r.moments;
+      m[0] += sx; m[1] += n * y; m[2] += sxx; m[3] += n * y * y; m[4] += sx * y;
     }
     return [...byRoot.values()];
   }
@@ -144,11 +175,26 @@ export class RegionCollector {
  * blocking, while a speck of ink (extra or missing) keeps the profile's smaller minimum.
  */
 const MIN_COLOUR_SHIFT_MM2 = 1;
+/**
+ * A colour shift is a change of the ink's colour over an area, so its pixels' differences point one way: the
+ * length of their mean vector is most of their mean length (0.9 and more on a reprinted or contaminated patch).
+ * A dark solid's screen beating against the scanner's grid, or mottle, makes a region of differences pointing
+ * every way, whose mean is small: a spectrophotometer's aperture averages it away, and so does this rule.
+ */
+const COLOUR_COHERENCE = 0.5;
+/**
+ * A speck or void of ink peaks well above the profile's level; the sheet's own noise (mottle, a tint's moiré)
+ * that gets past the flat allowance peaks just over it (false regions on the second simulator's training
+ * sheets: ΔE00 max 4.4–5.5 under a profile of 4).
+ */
+const INK_PEAK_SHARE = 1.25;
 /** Structural pixels (both kinds together) a changed glyph needs, in units of minStrongPx. */
 const STRUCTURAL_SHARE = 2;
 
 export interface FindingRules {
   dpi: number;
+  /** The profile's ΔE00: an ink region's peak is measured against it (INK_PEAK_SHARE). */
+  peakDeltaE00?: number;
   /** Second level: this many of a region's pixels must reach the profile's ΔE00 (a single pixel is noise). */
   minStrongPx: number;
   /** Smallest area kept, mm². */
@@ -162,6 +208,8 @@ export interface FindingRules {
 /** Regions → findings (without crops), largest first. */
 export function regionsToFindings(regions: Region[], rules: FindingRules): { findings: Finding[]; kept: Region[] } {
   const gapPx = (rules.mergeMm * rules.dpi) / 25.4;
+  // Incoherent colour regions go before any merging, which would hide them in a larger, mixed region.
+  regions = regions.filter((r) => kindOf(r.votes) !== "colour_shift" || coherence(r) >= COLOUR_COHERENCE);
   const strong = regions.filter((r) => r.strongCount >= rules.minStrongPx);
   // A changed glyph: the added and the removed strokes are separate small blobs, each often below the minimum
   // area. Taken together they count when they reach the second level like any region and hold enough pixels
@@ -174,6 +222,7 @@ export function regionsToFindings(regions: Region[], rules: FindingRules): { fin
   const pxArea = (25.4 / rules.dpi) ** 2;
   const kept = merged
     .filter((r) => r.count * pxArea >= (kindOf(r.votes) === "colour_shift" ? Math.max(rules.minAreaMm2, MIN_COLOUR_SHIFT_MM2) : rules.minAreaMm2))
+    .filter((r) => rules.peakDeltaE00 === undefined || kindOf(r.votes) === "colour_shift" || r.maxDeltaE >= INK_PEAK_SHARE * rules.peakDeltaE00)
     .sort((a, b) => b.count - a.count);
   const findings = kept.map((r): Finding => {
     const box: RectMm = {
@@ -188,13 +237,58 @@ export function regionsToFindings(regions: Region[], rules: FindingRules): { fin
       wMm: round3(box.w),
       hMm: round3(box.h),
       areaMm2: round3(r.count * pxArea),
-      kind: kindOf(r.votes),
+      kind: kindOfRegion(r, rules.dpi),
       deltaE00Mean: round2(r.sumDeltaE / r.count),
       deltaE00Max: round2(r.maxDeltaE),
       up: upOf(box, rules.ups, rules.pageMm),
     };
   });
   return { findings, kept };
+}
+
+/**
+ * A streak or scratch is long and thin: the region's spread along its main axis against across it (second
+ * moments; a uniform line of length L has σ = L / √12). Streaks and scratches of 0.15–0.4 mm come out of the
+ * low-pass under about 1 mm wide; a changed word is at least its x-height (≈ 1.1 mm at 6 pt) tall.
+ */
+const STREAK_MIN_LENGTH_MM = 4;
+const STREAK_MAX_WIDTH_MM = 1.2;
+const STREAK_MIN_ELONGATION = 5;
+/**
+ * A changed or missing piece of text or linework: most of the region lies on the artwork's type or linework
+ * and some of it is ink taken away (a changed glyph removes strokes as well as adding them; a missing word
+ * only removes). A spot of pen ink on type adds only.
+ */
+const TEXT_MIN_LINEWORK_SHARE = 0.6;
+const TEXT_MIN_MISSING_SHARE = 0.25;
+
+export function kindOfRegion(r: Region, dpi: number): FindingKind {
+  const base = kindOf(r.votes);
+  if (base === "colour_shift") return base;
+  const { length, width } = shapeMm(r, dpi);
+  if (length >= STREAK_MIN_LENGTH_MM && width <= STREAK_MAX_WIDTH_MM && length >= STREAK_MIN_ELONGATION * width) return "streak";
+  const ink = r.votes[0] + r.votes[1];
+  if (r.onLinework >= TEXT_MIN_LINEWORK_SHARE * r.count && r.votes[1] >= TEXT_MIN_MISSING_SHARE * ink) return "changed_text";
+  return base;
+}
+
+/** Length and width (mm) of the region as a uniform bar with the same second moments. */
+export function shapeMm(r: Region, dpi: number): { length: number; width: number } {
+  const n = r.count, [sx, sy, sxx, syy, sxy] = r.moments;
+  const mx = sx / n, my = sy / n;
+  // Each pixel is a unit square: its own variance 1/12 per axis.
+  const vxx = sxx / n - mx * mx + 1 / 12, vyy = syy / n - my * my + 1 / 12, vxy = sxy / n - mx * my;
+  const tr = vxx + vyy, det = vxx * vyy - vxy * vxy;
+  const d = Math.sqrt(Math.max(0, (tr * tr) / 4 - det));
+  const l1 = tr / 2 + d, l2 = Math.max(0, tr / 2 - d);
+  const mm = 25.4 / dpi;
+  return { length: Math.sqrt(12 * l1) * mm, width: Math.sqrt(12 * l2) * mm };
+}
+
+/** Length of the region's mean difference vector over its pixels' mean length, 0–1. */
+function coherence(r: Region): number {
+  const [l, a, b] = r.shiftSum;
+  return r.shiftLength > 0 ? Math.sqrt(l * l + a * a + b * b) / r.shiftLength : 1;
 }
 
 function kindOf(votes: [number, number, number]): FindingKind {
@@ -205,7 +299,7 @@ function kindOf(votes: [number, number, number]): FindingKind {
 
 /** Merges regions whose boxes come within `gapPx` of each other, until none do. */
 function mergeNearby(regions: Region[], gapPx: number): Region[] {
-  const out = regions.map((r) => ({ ...r, votes: [...r.votes] as [number, number, number], structural: [...r.structural] as [number, number] }));
+  const out = regions.map((r) => ({ ...r, votes: [...r.votes] as [number, number, number], structural: [...r.structural] as [number, number], shiftSum: [...r.shiftSum] as [number, number, number], moments: [...r.moments] as Region["moments"] }));
   let changed = true;
   while (changed) {
     changed = false;
@@ -219,6 +313,10 @@ function mergeNearby(regions: Region[], gapPx: number): Region[] {
         for (let k = 0; k < 3; k++) a.votes[k] += b.votes[k];
         a.structural[0] += b.structural[0];
         a.structural[1] += b.structural[1];
+        for (let k = 0; k < 3; k++) a.shiftSum[k] += b.shiftSum[k];
+        a.shiftLength += b.shiftLength;
+        a.onLinework += b.onLinework;
+        for (let k = 0; k < 5; k++) a.moments[k] += b.moments[k];
         out.splice(j, 1);
         j--;
         changed = true;

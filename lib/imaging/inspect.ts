@@ -4,12 +4,13 @@
 import { alignScan } from "./align";
 import { alignedScanSource, borrowScratch, haloPx, processRect, returnScratch, type SheetContext } from "./bands";
 import { makeCrops } from "./crops";
+import { measureAllowances } from "./allowances";
 import { RegionCollector, regionsToFindings } from "./findings";
 import { fitNormalisation, lowPassSigmaPx } from "./normalise";
 import { estimateOpticalBlur, OPTICAL_BLUR_STEPS_PX, suggestBlurStep } from "./optics";
 import { CACHE_MAX_PIXELS, preparedPageIfKept, adoptPrepared, type ContrastWindows, type PreparedRect, type PreparedRows } from "./prepared";
 import { validateProfile } from "./profiles";
-import { mmToPx, pxRectToMm, rectMmToPx, rectMmToPxInside } from "./raster";
+import { mmToPx, pxRectToMm, rectMmToPx, rectMmToPxInside, type PxRect } from "./raster";
 import {
   ImagingError,
   type Alignment,
@@ -103,7 +104,7 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
   const sigmaPx = lowPassSigmaPx(dpi);
   const radiusPx = Math.max(1, Math.ceil(mmToPx(profile.registrationToleranceMm, dpi) - 0.25));
   const peak = profile.deltaE00Threshold;
-  const inspectPx = rectMmToPxInside(alignment.coveredMm, dpi, artwork.width, artwork.height);
+  const inspectPx = awayFromPageEdge(rectMmToPxInside(alignment.coveredMm, dpi, artwork.width, artwork.height), artwork, Math.ceil(3 * sigmaPx) + radiusPx);
   started = performance.now();
   const fit = fitNormalisation(artwork, scan, alignment.artworkToScan, inspectPx, Math.ceil(2.5 * sigmaPx) + radiusPx);
   const fitted = performance.now();
@@ -129,6 +130,7 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
       artwork,
       source: alignedScanSource(scan, alignment, artwork, scratch.warp),
       model: fit.model,
+      light: fit.light,
       sigmaPx,
       radiusPx,
       windows,
@@ -140,6 +142,9 @@ export async function inspectSheet(input: InspectSheetInput): Promise<Inspection
       timings: { normalise: 0, compare: 0 },
       passes: { warp: 0, lowPass: 0, colourMap: 0, screen: 0, cielab: 0 },
     };
+    const allowances = await measureAllowances(ctx);
+    ctx.edgeAllowance = allowances.edge;
+    ctx.flatAllowance = allowances.flat;
     findings = await compareSheet(ctx, artwork, profile, { ups, crops: input.crops ?? false }, timings, progress);
     Object.assign(passes, ctx.passes);
   } finally {
@@ -170,7 +175,8 @@ async function compareSheet(
 ): Promise<Finding[]> {
   const { inspectPx, peakDeltaE00: peak } = ctx;
   const dpi = artwork.dpi;
-  const collector = new RegionCollector(artwork.width, peak);
+  const inkRegions = new RegionCollector(artwork.width, peak, false);
+  const colourRegions = new RegionCollector(artwork.width, peak, true);
   const bandPixels = artwork.width * artwork.height > CACHE_MAX_PIXELS ? LARGE_PAGE_BAND_PIXELS : BAND_PIXELS;
   const bandRows = Math.max(64, Math.floor(bandPixels / artwork.width), haloPx(ctx) * 4);
   const yEnd = inspectPx.y + inspectPx.h;
@@ -179,7 +185,8 @@ async function compareSheet(
     const rows = Math.min(bandRows, yEnd - y);
     const diff = await processRect(ctx, { x: 0, y, w: artwork.width, h: rows });
     started = performance.now();
-    collector.addBand(diff, rows, y);
+    inkRegions.addBand(diff, rows, y);
+    colourRegions.addBand(diff, rows, y);
     timings.findings += performance.now() - started;
     progress("compare", 20 + (70 * (y + rows - inspectPx.y)) / Math.max(1, inspectPx.h));
   }
@@ -189,8 +196,9 @@ async function compareSheet(
   progress("findings", 90);
   started = performance.now();
   const minAreaMm2 = (Math.PI / 4) * profile.minDefectMm ** 2;
-  const { findings } = regionsToFindings(collector.regions(), {
+  const { findings } = regionsToFindings([...inkRegions.regions(), ...colourRegions.regions()], {
     dpi,
+    peakDeltaE00: peak,
     minStrongPx: Math.max(3, Math.round((STRONG_SHARE * minAreaMm2) / (25.4 / dpi) ** 2)),
     minAreaMm2,
     mergeMm: Math.max(0.6, 2 * profile.minDefectMm),
@@ -202,6 +210,16 @@ async function compareSheet(
   }
   timings.findings += performance.now() - started;
   return findings;
+}
+
+/**
+ * The inspected area kept `marginPx` clear of the page's own edges: the artwork ends at its trim box while the
+ * press sheet goes on (bleed, crop marks, the next up), so the two low-passes differ there along the whole edge.
+ */
+function awayFromPageEdge(r: PxRect, artwork: RgbaImage, marginPx: number): PxRect {
+  const x0 = Math.max(r.x, marginPx), y0 = Math.max(r.y, marginPx);
+  const x1 = Math.min(r.x + r.w, artwork.width - marginPx), y1 = Math.min(r.y + r.h, artwork.height - marginPx);
+  return { x: x0, y: y0, w: Math.max(0, x1 - x0), h: Math.max(0, y1 - y0) };
 }
 
 /** The alignment of a scan already in the artwork's pixel grid (same size and resolution). */

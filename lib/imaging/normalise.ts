@@ -6,6 +6,7 @@ import sharp from "sharp";
 import { deltaE00, srgbToLab } from "./colour";
 import { evaluateModel, fitColourModel, identityModel, type ColourModel } from "./colour-model";
 import { rgbaToRgb, rgbToRgba, type AffineMap, type PxRect } from "./raster";
+import { fitLightField, type LightField } from "./light-field";
 import { sampleFlatPairs, type SamplePairs } from "./samples";
 import type { RgbaImage } from "./types";
 
@@ -43,6 +44,8 @@ export interface NormalisationFit {
   /** Median ΔE00 left after normalisation on the same samples. */
   residualDeltaE00: number;
   flatSamples: number;
+  /** The scanner's light across the page (light-field.ts), null when not measurable. */
+  light: LightField | null;
 }
 
 const DRIFT_SAMPLES = 4000;
@@ -61,7 +64,8 @@ export function fitNormalisation(
   const pairs = sampleFlatPairs(artwork, scan, artworkToScan, inspectPx, radiusPx);
   const model = pairs.flatCount >= MIN_FLAT_SAMPLES ? fitColourModel(pairs) : identityModel();
   const { drift, residual } = measureDrift(pairs, model);
-  return { model, driftDeltaE00: drift, residualDeltaE00: residual, flatSamples: pairs.flatCount };
+  const light = pairs.flatCount >= MIN_FLAT_SAMPLES ? fitLightField(pairs, model, artwork.width, artwork.height) : null;
+  return { model, driftDeltaE00: drift, residualDeltaE00: residual, flatSamples: pairs.flatCount, light };
 }
 
 function measureDrift(pairs: SamplePairs, model: ColourModel): { drift: number; residual: number } {

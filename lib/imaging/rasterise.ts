@@ -8,6 +8,7 @@ import { createRequire } from "node:module";
 import path from "node:path";
 import { PDFArray, PDFDocument, PDFName, PDFNumber } from "pdf-lib";
 import type { PDFDocumentProxy } from "pdfjs-dist/types/src/display/api";
+import sharp from "sharp";
 import { ImagingError, type ArtworkRaster } from "./types";
 
 export const MIN_DPI = 72;
@@ -213,4 +214,22 @@ function toBox(array: PDFArray | undefined): Box | null {
   if (v.some((n) => !Number.isFinite(n))) return null;
   const box = { x0: Math.min(v[0], v[2]), y0: Math.min(v[1], v[3]), x1: Math.max(v[0], v[2]), y1: Math.max(v[1], v[3]) };
   return box.x1 > box.x0 && box.y1 > box.y0 ? box : null;
+}
+
+/**
+ * A scan coarser than the approved raster is compared at its own resolution: artwork finer than the scan shows
+ * only what the scan cannot, and a scan stretched up to the artwork's grid blurs every edge past what the
+ * comparison forgives (a 150 dpi scan against a 300 dpi raster gave strips and whole ups of false findings).
+ * The raster is reduced by libvips (sharp) to the same pixel grid rasterisePage would give at `dpi`. Returns
+ * the artwork itself when `dpi` is not at least a tenth lower.
+ */
+export async function artworkAtDpi(artwork: ArtworkRaster, dpi: number): Promise<ArtworkRaster> {
+  if (!(dpi < artwork.dpi * 0.9) || dpi < MIN_DPI) return artwork;
+  const width = Math.round((artwork.widthMm * dpi) / 25.4);
+  const height = Math.round((artwork.heightMm * dpi) / 25.4);
+  const { data } = await sharp(artwork.data, { raw: { width: artwork.width, height: artwork.height, channels: 4 } })
+    .resize(width, height, { fit: "fill", kernel: "lanczos3" })
+    .raw()
+    .toBuffer({ resolveWithObject: true });
+  return { ...artwork, width, height, dpi, data: new Uint8Array(data.buffer, data.byteOffset, data.length) };
 }

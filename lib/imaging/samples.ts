@@ -11,6 +11,8 @@ import type { RgbaImage } from "./types";
 export interface SamplePairs {
   flatArt: Float32Array;
   flatScan: Float32Array;
+  /** Artwork pixel of each flat pair (x, y; 2 a pair). */
+  flatPos: Float32Array;
   flatCount: number;
   allArt: Float32Array;
   allScan: Float32Array;
@@ -85,7 +87,7 @@ export function sampleFlatPairs(
   const x1 = inside.x + inside.w - r, y1 = inside.y + inside.h - r;
   const grid = artworkGrid(artwork, radiusPx);
   const cap = grid.count;
-  const flatArt = new Float32Array(cap * 3), flatScan = new Float32Array(cap * 3);
+  const flatArt = new Float32Array(cap * 3), flatScan = new Float32Array(cap * 3), flatPos = new Float32Array(cap * 2);
   const allArt = new Float32Array(cap * 3), allScan = new Float32Array(cap * 3);
   let flatCount = 0, allCount = 0;
   const sd = scan.data, sw = scan.width, sh = scan.height;
@@ -104,9 +106,10 @@ export function sampleFlatPairs(
     if (grid.flat[i] === 0) continue;
     flatArt[f] = grid.pixel[i * 3]; flatArt[f + 1] = grid.pixel[i * 3 + 1]; flatArt[f + 2] = grid.pixel[i * 3 + 2];
     flatScan[f] = allScan[a]; flatScan[f + 1] = allScan[a + 1]; flatScan[f + 2] = allScan[a + 2];
+    flatPos[flatCount * 2] = x; flatPos[flatCount * 2 + 1] = y;
     flatCount++;
   }
-  return { flatArt, flatScan, flatCount, allArt, allScan, allCount };
+  return { flatArt, flatScan, flatPos, flatCount, allArt, allScan, allCount };
 }
 
 function isFlat(art: Uint8Array | Uint8ClampedArray, width: number, cx: number, cy: number, r: number): boolean {

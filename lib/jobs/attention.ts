@@ -5,7 +5,7 @@
 import { and, asc, desc, eq, gte, inArray, ne, sql, type SQL } from "drizzle-orm";
 import { db } from "../../db/client";
 import { artworkRevisions, customers, inspections, jobs, scans } from "../../db/schema";
-import { can, customerScope, type Actor } from "../auth/policy";
+import { can, customerScope, type Action, type Actor } from "../auth/policy";
 
 export type AttentionKind = "artwork_to_approve" | "raster_failed" | "inspection_failed" | "sheet_failed" | "sheet_to_review" | "sheet_signed";
 
@@ -45,6 +45,18 @@ async function count(query: Promise<{ n: number }[]>) {
 }
 const countColumn = { n: sql<number>`count(*)`.mapWith(Number) };
 
+type JobFields = { id: number; jobId: number; jobNumber: string; jobTitle: string; customerName: string; customerId: number };
+
+/** The rows the policy lets the actor read (it has the last word, whatever the query did), as items. */
+function itemsOf<R extends JobFields>(actor: Actor, action: Action, kind: AttentionKind, rows: R[], describe: (r: R) => { subject: string; detail: string | null; at: Date }): AttentionItem[] {
+  return rows
+    .filter((r) => can(actor, action, { customerId: r.customerId }))
+    .map((r) => {
+      const { subject, detail, at } = describe(r);
+      return { kind, id: r.id, jobId: r.jobId, jobNumber: r.jobNumber, jobTitle: r.jobTitle, customerName: r.customerName, subject, detail, at: at.toISOString() };
+    });
+}
+
 async function artworkSection(actor: Actor, kind: "artwork_to_approve" | "raster_failed", scope: SQL | undefined): Promise<AttentionSection> {
   const where = and(
     scope,
@@ -62,19 +74,7 @@ async function artworkSection(actor: Actor, kind: "artwork_to_approve" | "raster
       .limit(ATTENTION_LIMIT),
     count(db.select(countColumn).from(artworkRevisions).innerJoin(jobs, eq(jobs.id, artworkRevisions.jobId)).where(where)),
   ]);
-  const items = rows
-    .filter((r) => can(actor, "job.read", { customerId: r.customerId }))
-    .map((r) => ({
-      kind,
-      id: r.id,
-      jobId: r.jobId,
-      jobNumber: r.jobNumber,
-      jobTitle: r.jobTitle,
-      customerName: r.customerName,
-      subject: `Revision ${r.revision}`,
-      detail: kind === "raster_failed" ? r.error : r.fileName,
-      at: r.at.toISOString(),
-    }));
+  const items = itemsOf(actor, "job.read", kind, rows, (r) => ({ subject: `Revision ${r.revision}`, detail: kind === "raster_failed" ? r.error : r.fileName, at: r.at }));
   return { kind, items, total };
 }
 
@@ -104,19 +104,11 @@ async function sheetSection(actor: Actor, kind: "inspection_failed" | "sheet_fai
       .limit(ATTENTION_LIMIT),
     count(db.select(countColumn).from(inspections).innerJoin(scans, eq(scans.id, inspections.scanId)).innerJoin(jobs, eq(jobs.id, scans.jobId)).where(where)),
   ]);
-  const items = rows
-    .filter((r) => can(actor, "inspection.read", { customerId: r.customerId }))
-    .map((r) => ({
-      kind,
-      id: r.id,
-      jobId: r.jobId,
-      jobNumber: r.jobNumber,
-      jobTitle: r.jobTitle,
-      customerName: r.customerName,
-      subject: r.sheetNumber ? `Sheet ${r.sheetNumber}` : r.fileName || `Scan of inspection ${r.id}`,
-      detail: kind === "inspection_failed" ? r.error : kind === "sheet_signed" ? (r.verdict === "passed" ? "Passed" : "Failed") : null,
-      at: (r.at ?? r.createdAt).toISOString(),
-    }));
+  const items = itemsOf(actor, "inspection.read", kind, rows, (r) => ({
+    subject: r.sheetNumber ? `Sheet ${r.sheetNumber}` : r.fileName || `Scan of inspection ${r.id}`,
+    detail: kind === "inspection_failed" ? r.error : kind === "sheet_signed" ? (r.verdict === "passed" ? "Passed" : "Failed") : null,
+    at: r.at ?? r.createdAt,
+  }));
   return { kind, items, total };
 }
 

@@ -3,11 +3,12 @@
 // another customer's job is "not found". Each change writes its audit event in the same transaction.
 import { and, asc, desc, eq, like, or, sql, type SQL } from "drizzle-orm";
 import { db, type Tx } from "../../db/client";
-import { customers, inspections, jobs, scans, toleranceProfiles, type Job } from "../../db/schema";
+import { customers, jobs, toleranceProfiles, type Job } from "../../db/schema";
 import { recordAudit } from "../audit";
 import { authorize, can, customerScope, type Actor } from "../auth/policy";
 import { AppError, invalidInput } from "../errors";
 import { loadJobFor } from "../pipeline/access";
+import { selectJobList } from "./queries";
 import { isDuplicateKey, parseInput, type Page } from "../validation";
 import { STATUS_LABELS, STATUS_TRANSITIONS, jobInput, jobListQuery, jobStatusInput, type JobInput, type JobStatus } from "./schema";
 
@@ -67,26 +68,8 @@ export async function listJobs(actor: Actor, rawQuery: unknown): Promise<Page<Jo
   const where = conditions.length ? and(...conditions) : undefined;
   const direction = query.dir === "desc" ? desc : asc;
   const column = { jobNumber: jobs.jobNumber, title: jobs.title, customer: customers.name, status: jobs.status, updated: jobs.updatedAt }[query.sort];
-  const scanCount = sql<number>`(select count(*) from ${scans} where ${scans.jobId} = ${jobs.id})`.mapWith(Number);
-  const openSheetCount = sql<number>`(select count(*) from ${inspections} join ${scans} on ${scans.id} = ${inspections.scanId}
-    where ${scans.jobId} = ${jobs.id} and ${inspections.verdict} = 'pending')`.mapWith(Number);
   const [rows, [{ total }]] = await Promise.all([
-    db
-      .select({
-        id: jobs.id,
-        jobNumber: jobs.jobNumber,
-        title: jobs.title,
-        customerId: jobs.customerId,
-        customerName: customers.name,
-        status: jobs.status,
-        press: jobs.press,
-        scanCount,
-        openSheetCount,
-        updatedAt: jobs.updatedAt,
-      })
-      .from(jobs)
-      .innerJoin(customers, eq(customers.id, jobs.customerId))
-      .where(where)
+    selectJobList(where)
       .orderBy(direction(column), desc(jobs.id))
       .limit(query.pageSize)
       .offset((query.page - 1) * query.pageSize),
@@ -192,10 +175,13 @@ function changesOf(before: Job, after: ReturnType<typeof columnsOf>) {
 }
 
 export async function updateJob(actor: Actor, jobId: number, rawInput: unknown): Promise<JobDetail> {
-  const input = parseInput(jobInput, rawInput);
+  let jobNumber = "";
   try {
     await db.transaction(async (tx) => {
+      // The policy answers before the input is read: a caller who may not edit the job learns nothing more.
       const job = await loadJobFor(actor, jobId, "job.update", tx);
+      const input = parseInput(jobInput, rawInput);
+      jobNumber = input.jobNumber;
       await tx.select({ id: jobs.id }).from(jobs).where(eq(jobs.id, job.id)).for("update");
       if (job.status === "completed" || job.status === "cancelled") {
         throw new AppError("job_closed", `Job ${job.jobNumber} is ${STATUS_LABELS[job.status].toLowerCase()}; a closed job is not edited.`, 409);
@@ -206,16 +192,16 @@ export async function updateJob(actor: Actor, jobId: number, rawInput: unknown):
       await recordAudit(tx, { actorId: actor.id, action: "job.update", subjectType: "job", subjectId: job.id, details: { jobId: job.id, changed: changesOf(job, values) } });
     });
   } catch (error) {
-    if (isDuplicateKey(error)) throw duplicateNumber(input.jobNumber);
+    if (isDuplicateKey(error)) throw duplicateNumber(jobNumber);
     throw error;
   }
   return getJob(actor, jobId);
 }
 
 export async function changeJobStatus(actor: Actor, jobId: number, rawInput: unknown): Promise<JobDetail> {
-  const { status } = parseInput(jobStatusInput, rawInput);
   await db.transaction(async (tx) => {
     const job = await loadJobFor(actor, jobId, "job.update", tx);
+    const { status } = parseInput(jobStatusInput, rawInput);
     const [locked] = await tx.select({ status: jobs.status }).from(jobs).where(eq(jobs.id, job.id)).for("update");
     if (!STATUS_TRANSITIONS[locked.status].includes(status)) {
       const allowed = STATUS_TRANSITIONS[locked.status].map((s) => STATUS_LABELS[s].toLowerCase());

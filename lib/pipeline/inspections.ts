@@ -1,14 +1,31 @@
 // Inspections as users act on them: retry a failed one (QA, admin), read a finding's crop image.
 import { eq, sql } from "drizzle-orm";
 import { db } from "@/db/client";
-import { findings, inspections, scans } from "@/db/schema";
+import { findings, inspections, jobs, scans } from "@/db/schema";
 import { recordAudit } from "@/lib/audit";
-import { authorize, type Actor } from "@/lib/auth/policy";
+import { authorize, can, type Action, type Actor } from "@/lib/auth/policy";
 import { notFound } from "@/lib/errors";
 import { enqueueInspection } from "@/lib/queue/queues";
 import type { CropKind } from "@/storage/keys";
 import type { FindingKind } from "@/lib/imaging/types";
 import { conflict, loadJobFor } from "./access";
+
+/**
+ * The inspection with its job's id, after the policy check, in one query (the hot path of findings and crops):
+ * an inspection the actor may not read is "not found", like one that does not exist.
+ */
+async function inspectionFor(actor: Actor, id: number, action: Action) {
+  const [row] = await db
+    .select({ inspection: inspections, jobId: scans.jobId, customerId: jobs.customerId })
+    .from(inspections)
+    .innerJoin(scans, eq(scans.id, inspections.scanId))
+    .innerJoin(jobs, eq(jobs.id, scans.jobId))
+    .where(eq(inspections.id, id))
+    .limit(1);
+  if (!row || !can(actor, "job.read", { customerId: row.customerId })) throw notFound("The inspection");
+  authorize(actor, action, { customerId: row.customerId });
+  return row;
+}
 
 async function loadInspection(id: number) {
   const [row] = await db
@@ -42,8 +59,7 @@ export async function retryInspection(actor: Actor, inspectionId: number): Promi
 
 /** The storage key of one crop of one finding, after checking the actor may read the inspection. */
 export async function cropKeyFor(actor: Actor, inspectionId: number, findingId: number, kind: CropKind): Promise<string> {
-  const { jobId } = await loadInspection(inspectionId);
-  await loadJobFor(actor, jobId, "inspection.read");
+  await inspectionFor(actor, inspectionId, "inspection.read");
   const [finding] = await db.select().from(findings).where(eq(findings.id, findingId)).limit(1);
   if (!finding || finding.inspectionId !== inspectionId) throw notFound("The finding");
   const key = { artwork: finding.cropArtworkKey, scan: finding.cropScanKey, difference: finding.cropDifferenceKey }[kind];
@@ -66,34 +82,30 @@ export interface FindingView {
   crops: { artwork: string; scan: string; difference: string } | null;
 }
 
+/** One stored finding as the API and the pages show it: mm, ΔE00, up, decision and links to its crop images. */
+export function findingView(f: typeof findings.$inferSelect): FindingView {
+  const crops = `/api/inspections/${f.inspectionId}/findings/${f.id}/crops`;
+  return {
+    id: f.id,
+    kind: f.kind,
+    xMm: f.xUm / 1000,
+    yMm: f.yUm / 1000,
+    wMm: f.wUm / 1000,
+    hMm: f.hUm / 1000,
+    areaMm2: f.areaUm2 / 1e6,
+    deltaE00Mean: f.deltaE00Mean,
+    deltaE00Max: f.deltaE00Max,
+    up: f.upIndex,
+    decision: f.decision,
+    crops: f.cropScanKey ? { artwork: `${crops}/artwork`, scan: `${crops}/scan`, difference: `${crops}/difference` } : null,
+  };
+}
+
 /** Findings of one inspection with links to their crop images, largest first. */
 export async function listFindings(actor: Actor, inspectionId: number): Promise<FindingView[]> {
-  const { jobId } = await loadInspection(inspectionId);
-  await loadJobFor(actor, jobId, "inspection.read");
+  await inspectionFor(actor, inspectionId, "inspection.read");
   const rows = await db.select().from(findings).where(eq(findings.inspectionId, inspectionId));
-  const base = `/api/inspections/${inspectionId}/findings`;
-  return rows
-    .sort((a, b) => b.areaUm2 - a.areaUm2)
-    .map((f) => ({
-      id: f.id,
-      kind: f.kind,
-      xMm: f.xUm / 1000,
-      yMm: f.yUm / 1000,
-      wMm: f.wUm / 1000,
-      hMm: f.hUm / 1000,
-      areaMm2: f.areaUm2 / 1e6,
-      deltaE00Mean: f.deltaE00Mean,
-      deltaE00Max: f.deltaE00Max,
-      up: f.upIndex,
-      decision: f.decision,
-      crops: f.cropScanKey
-        ? {
-            artwork: `${base}/${f.id}/crops/artwork`,
-            scan: `${base}/${f.id}/crops/scan`,
-            difference: `${base}/${f.id}/crops/difference`,
-          }
-        : null,
-    }));
+  return rows.sort((a, b) => b.areaUm2 - a.areaUm2).map(findingView);
 }
 
 export interface InspectionView {

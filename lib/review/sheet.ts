@@ -5,31 +5,20 @@ import { desc, eq, inArray } from "drizzle-orm";
 import { db } from "@/db/client";
 import { findings, inspections, scans, users } from "@/db/schema";
 import { can, type Actor } from "@/lib/auth/policy";
-import type { FindingKind } from "@/lib/imaging/types";
 import type { Decision, DecisionReason } from "./decisions";
+import { findingView, type FindingView } from "@/lib/pipeline/inspections";
 import { loadSheetFor } from "./load";
 import { listSignatures, type SignatureView } from "./signoff";
 
-export interface SheetFinding {
-  id: number;
+export interface SheetFinding extends FindingView {
   /** 1-based number shown on the box and in the list (largest first). */
   number: number;
-  kind: FindingKind;
-  xMm: number;
-  yMm: number;
-  wMm: number;
-  hMm: number;
-  areaMm2: number;
-  deltaE00Mean: number;
-  deltaE00Max: number;
-  up: number | null;
   decision: "pending" | Decision;
   reason: DecisionReason | null;
   comment: string | null;
   decidedBy: string | null;
   decidedAt: string | null;
   version: number;
-  crops: { artwork: string; scan: string; difference: string } | null;
   /** How the finding stands in the press run (null until the run memory has looked at it). */
   recurrence: "isolated" | "repeating" | "every_up" | null;
   /** Run memory: the accepted finding of an earlier sheet at the same place, for the reviewer to confirm. */
@@ -133,26 +122,13 @@ export async function getSheetView(actor: Actor, inspectionId: number): Promise<
         ? null
         : { status: i.tilesStatus, artwork: `${base}/tiles/artwork.dzi`, scan: `${base}/tiles/scan.dzi`, difference: `${base}/tiles/difference.dzi` },
     findings: sorted.map((f, n) => ({
-      id: f.id,
+      ...findingView(f),
       number: n + 1,
-      kind: f.kind,
-      xMm: f.xUm / 1000,
-      yMm: f.yUm / 1000,
-      wMm: f.wUm / 1000,
-      hMm: f.hUm / 1000,
-      areaMm2: f.areaUm2 / 1e6,
-      deltaE00Mean: f.deltaE00Mean,
-      deltaE00Max: f.deltaE00Max,
-      up: f.upIndex,
-      decision: f.decision,
       reason: f.decisionReason,
       comment: f.comment,
       decidedBy: f.decidedBy ? (names.get(f.decidedBy) ?? null) : null,
       decidedAt: f.decidedAt?.toISOString() ?? null,
       version: f.version,
-      crops: f.cropScanKey
-        ? { artwork: `${base}/findings/${f.id}/crops/artwork`, scan: `${base}/findings/${f.id}/crops/scan`, difference: `${base}/findings/${f.id}/crops/difference` }
-        : null,
       recurrence: f.recurrence,
       prior: f.priorFindingId ? (priors.get(f.priorFindingId) ?? null) : null,
     })),

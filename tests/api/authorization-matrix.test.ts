@@ -1,238 +1,175 @@
-// The authorization matrix: every route handler (/api/v1 and the pages' own routes) called as anonymous, as each
-// role (by token and by session cookie), as a disabled user, with a revoked and an expired token, and as a
-// customer user of another customer; each answer is checked against POLICY_TABLE below, which is the table in
-// DEVELOPERS.md ("Who may do what"). Another customer's job is a 404 and its data never appears.
+// The authorization matrix of the route handlers: every handler under app/ (the pages' own /api routes and
+// /api/v1) called as anonymous, as each role (by token and by session cookie), as a disabled user, with a revoked
+// and an expired token, and as a customer user of another customer; each answer is checked against the policy
+// table of DEVELOPERS.md ("Who may do what"), which must equal lib/auth/policy.ts. Another customer's job is a 404
+// and its data never appears. A route handler missing from ROUTES fails the guard test at the end.
+import { readdirSync } from "node:fs";
+import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb } from "@/db/client";
-import { ACTIONS, can, type Action, type Role } from "@/lib/auth/policy";
+import { SIGNATURE_MEANINGS } from "@/db/schema";
+import { POLICY, type Action, type Role } from "@/lib/auth/policy";
+import { answerMatches, expectedAnswer, TABLE, type Caller } from "./policy-table";
 import { call, emptyMultipart, makePlant, sessionCookie, type Call, type Handler, type Plant, type PlantJob } from "./support";
 
-const { GET: listJobs } = await import("@/app/api/v1/jobs/route");
-const { GET: getJob } = await import("@/app/api/v1/jobs/[jobId]/route");
-const { POST: v1UploadArtwork } = await import("@/app/api/v1/jobs/[jobId]/artwork-revisions/route");
-const { POST: v1Approve } = await import("@/app/api/v1/artwork-revisions/[revisionId]/approve/route");
-const { POST: v1UploadScans } = await import("@/app/api/v1/jobs/[jobId]/scans/route");
-const { GET: v1Inspection } = await import("@/app/api/v1/inspections/[inspectionId]/route");
-const { GET: v1Findings } = await import("@/app/api/v1/inspections/[inspectionId]/findings/route");
-const { POST: v1Retry } = await import("@/app/api/v1/inspections/[inspectionId]/retry/route");
-const { GET: pipeline } = await import("@/app/api/jobs/[jobId]/pipeline/route");
-const { POST: uploadArtwork } = await import("@/app/api/jobs/[jobId]/artworks/route");
-const { POST: uploadScans } = await import("@/app/api/jobs/[jobId]/scans/route");
-const { POST: approve } = await import("@/app/api/artworks/[revisionId]/approve/route");
-const { GET: findings } = await import("@/app/api/inspections/[inspectionId]/findings/route");
-const { POST: retry } = await import("@/app/api/inspections/[inspectionId]/retry/route");
-const { GET: crop } = await import("@/app/api/inspections/[inspectionId]/findings/[findingId]/crops/[kind]/route");
-// --- Press run routes (issue 13: traceability, CSV, reports) ---
-const { GET: v1Run } = await import("@/app/api/v1/jobs/[jobId]/run/route");
-const { GET: v1RunCsv } = await import("@/app/api/v1/jobs/[jobId]/run/sheets.csv/route");
-const { GET: v1RunReport } = await import("@/app/api/v1/jobs/[jobId]/run/report.pdf/route");
-const { GET: v1SheetReport } = await import("@/app/api/v1/inspections/[inspectionId]/report.pdf/route");
-// --- end of press run routes ---
-
-/** Role × action, as in DEVELOPERS.md. Customer users: their own customer's jobs only. */
-const POLICY_TABLE: Record<Action, readonly Role[]> = {
-  "job.read": ["admin", "prepress", "qa", "reviewer", "customer"],
-  "job.create": ["admin", "prepress"],
-  "job.update": ["admin", "prepress"],
-  "customer.manage": ["admin", "prepress"],
-  "artwork.upload": ["admin", "prepress"],
-  "artwork.approve": ["admin", "prepress"],
-  "scan.upload": ["admin", "qa"],
-  "inspection.read": ["admin", "prepress", "qa", "reviewer", "customer"],
-  "inspection.retry": ["admin", "qa"],
-  "finding.decide": ["admin", "reviewer"],
-  "sheet.signoff": ["admin", "reviewer"],
-  "sheet.reopen": ["admin"],
-  "user.manage": ["admin"],
-  "settings.manage": ["admin"],
-  "audit.read": ["admin"],
-  // Self-service: only one's own tokens (tests/auth/tokens.test.ts checks the ownership).
-  "api_token.manage": ["admin", "prepress", "qa", "reviewer", "customer"],
-};
+const HTTP_METHODS = ["GET", "HEAD", "POST", "PUT", "PATCH", "DELETE", "OPTIONS"] as const;
 
 interface RouteCase {
-  name: string;
-  handler: Handler;
+  /** The route file, from the repository root. */
+  file: string;
+  method: (typeof HTTP_METHODS)[number];
   action: Action;
-  request: (job: PlantJob) => Call;
+  scope: "job" | "plant" | "list";
+  request: (job: PlantJob, plant: Plant) => Partial<Call>;
 }
 
-const post = (path: string, params: Record<string, string>, extra: Partial<Call> = {}): Call => ({ method: "POST", path, params, ...extra });
+const json = (body: unknown): Partial<Call> => ({ body: JSON.stringify(body), headers: { "content-type": "application/json" } });
+const unique = () => Math.random().toString(36).slice(2, 10);
+const validJob = (job: PlantJob) => ({ jobNumber: job.jobNumber, customerId: job.customerId, title: "Herbal tea 20 bags, folding carton", upsRows: 2, upsColumns: 3 });
+const decision = { decision: "accepted", reason: "no_defect", version: 0 };
+const signature = { verdict: "passed", meaning: SIGNATURE_MEANINGS[0], password: "not-the-password" };
+
+const jobParams = (j: PlantJob) => ({ jobId: String(j.jobId) });
+const inspectionParams = (j: PlantJob) => ({ inspectionId: String(j.inspectionId) });
+const findingParams = (j: PlantJob) => ({ inspectionId: String(j.inspectionId), findingId: String(j.findingId) });
 
 const ROUTES: RouteCase[] = [
-  { name: "GET /api/v1/jobs/{id}", handler: getJob as Handler, action: "job.read", request: (j) => ({ path: `/api/v1/jobs/${j.jobId}`, params: { jobId: String(j.jobId) } }) },
-  {
-    name: "POST /api/v1/jobs/{id}/artwork-revisions",
-    handler: v1UploadArtwork as Handler,
-    action: "artwork.upload",
-    request: (j) => post(`/api/v1/jobs/${j.jobId}/artwork-revisions`, { jobId: String(j.jobId) }, emptyMultipart()),
-  },
-  {
-    name: "POST /api/v1/artwork-revisions/{id}/approve",
-    handler: v1Approve as Handler,
-    action: "artwork.approve",
-    request: (j) => post(`/api/v1/artwork-revisions/${j.draftRevisionId}/approve`, { revisionId: String(j.draftRevisionId) }),
-  },
-  {
-    name: "POST /api/v1/jobs/{id}/scans",
-    handler: v1UploadScans as Handler,
-    action: "scan.upload",
-    request: (j) => post(`/api/v1/jobs/${j.jobId}/scans`, { jobId: String(j.jobId) }, emptyMultipart()),
-  },
-  {
-    name: "GET /api/v1/inspections/{id}",
-    handler: v1Inspection as Handler,
-    action: "inspection.read",
-    request: (j) => ({ path: `/api/v1/inspections/${j.inspectionId}`, params: { inspectionId: String(j.inspectionId) } }),
-  },
-  {
-    name: "GET /api/v1/inspections/{id}/findings",
-    handler: v1Findings as Handler,
-    action: "inspection.read",
-    request: (j) => ({ path: `/api/v1/inspections/${j.inspectionId}/findings`, params: { inspectionId: String(j.inspectionId) } }),
-  },
-  {
-    name: "POST /api/v1/inspections/{id}/retry",
-    handler: v1Retry as Handler,
-    action: "inspection.retry",
-    request: (j) => post(`/api/v1/inspections/${j.failedInspectionId}/retry`, { inspectionId: String(j.failedInspectionId) }),
-  },
-  { name: "GET /api/jobs/{id}/pipeline", handler: pipeline as Handler, action: "job.read", request: (j) => ({ path: `/api/jobs/${j.jobId}/pipeline`, params: { jobId: String(j.jobId) } }) },
-  {
-    name: "POST /api/jobs/{id}/artworks",
-    handler: uploadArtwork as Handler,
-    action: "artwork.upload",
-    request: (j) => post(`/api/jobs/${j.jobId}/artworks`, { jobId: String(j.jobId) }, emptyMultipart()),
-  },
-  {
-    name: "POST /api/jobs/{id}/scans",
-    handler: uploadScans as Handler,
-    action: "scan.upload",
-    request: (j) => post(`/api/jobs/${j.jobId}/scans`, { jobId: String(j.jobId) }, emptyMultipart()),
-  },
-  {
-    name: "POST /api/artworks/{id}/approve",
-    handler: approve as Handler,
-    action: "artwork.approve",
-    request: (j) => post(`/api/artworks/${j.draftRevisionId}/approve`, { revisionId: String(j.draftRevisionId) }),
-  },
-  {
-    name: "GET /api/inspections/{id}/findings",
-    handler: findings as Handler,
-    action: "inspection.read",
-    request: (j) => ({ path: `/api/inspections/${j.inspectionId}/findings`, params: { inspectionId: String(j.inspectionId) } }),
-  },
-  {
-    name: "POST /api/inspections/{id}/retry",
-    handler: retry as Handler,
-    action: "inspection.retry",
-    request: (j) => post(`/api/inspections/${j.failedInspectionId}/retry`, { inspectionId: String(j.failedInspectionId) }),
-  },
-  {
-    name: "GET /api/inspections/{id}/findings/{id}/crops/scan",
-    handler: crop as Handler,
-    action: "inspection.read",
-    request: (j) => ({
-      path: `/api/inspections/${j.inspectionId}/findings/${j.findingId}/crops/scan`,
-      params: { inspectionId: String(j.inspectionId), findingId: String(j.findingId), kind: "scan" },
-    }),
-  },
-  // --- Press run routes (issue 13): read like the sheets they are made of ---
-  { name: "GET /api/v1/jobs/{id}/run", handler: v1Run as Handler, action: "inspection.read", request: (j) => ({ path: `/api/v1/jobs/${j.jobId}/run`, params: { jobId: String(j.jobId) } }) },
-  {
-    name: "GET /api/v1/jobs/{id}/run/sheets.csv",
-    handler: v1RunCsv as Handler,
-    action: "inspection.read",
-    request: (j) => ({ path: `/api/v1/jobs/${j.jobId}/run/sheets.csv`, params: { jobId: String(j.jobId) } }),
-  },
-  {
-    name: "GET /api/v1/jobs/{id}/run/report.pdf",
-    handler: v1RunReport as Handler,
-    action: "inspection.read",
-    request: (j) => ({ path: `/api/v1/jobs/${j.jobId}/run/report.pdf`, params: { jobId: String(j.jobId) } }),
-  },
-  {
-    name: "GET /api/v1/inspections/{id}/report.pdf",
-    handler: v1SheetReport as Handler,
-    action: "inspection.read",
-    request: (j) => ({ path: `/api/v1/inspections/${j.inspectionId}/report.pdf`, params: { inspectionId: String(j.inspectionId) } }),
-  },
+  // The pages' own routes (app/api, cookie or token).
+  { file: "app/api/artworks/[revisionId]/approve/route.ts", method: "POST", action: "artwork.approve", scope: "job", request: (j) => ({ params: { revisionId: String(j.draftRevisionId) } }) },
+  { file: "app/api/artworks/[revisionId]/excluded-areas/route.ts", method: "PUT", action: "artwork.upload", scope: "job", request: (j) => ({ params: { revisionId: String(j.draftRevisionId) }, ...json({ areas: [] }) }) },
+  { file: "app/api/artworks/[revisionId]/preview/route.ts", method: "GET", action: "job.read", scope: "job", request: (j) => ({ params: { revisionId: String(j.approvedRevisionId) } }) },
+  { file: "app/api/attention/route.ts", method: "GET", action: "job.read", scope: "list", request: () => ({}) },
+  { file: "app/api/audit/route.ts", method: "GET", action: "audit.read", scope: "plant", request: () => ({}) },
+  { file: "app/api/customers/route.ts", method: "GET", action: "customer.manage", scope: "plant", request: () => ({}) },
+  { file: "app/api/inspections/[inspectionId]/findings/[findingId]/crops/[kind]/route.ts", method: "GET", action: "inspection.read", scope: "job", request: (j) => ({ params: { ...findingParams(j), kind: "scan" } }) },
+  { file: "app/api/inspections/[inspectionId]/findings/[findingId]/decision/route.ts", method: "POST", action: "finding.decide", scope: "job", request: (j) => ({ params: findingParams(j), ...json(decision) }) },
+  { file: "app/api/inspections/[inspectionId]/findings/[findingId]/decision/route.ts", method: "DELETE", action: "finding.decide", scope: "job", request: (j) => ({ params: findingParams(j), ...json({ version: 1 }) }) },
+  { file: "app/api/inspections/[inspectionId]/findings/route.ts", method: "GET", action: "inspection.read", scope: "job", request: (j) => ({ params: inspectionParams(j) }) },
+  { file: "app/api/inspections/[inspectionId]/reopen/route.ts", method: "POST", action: "sheet.reopen", scope: "job", request: (j) => ({ params: inspectionParams(j), ...json({ reason: "Matrix test" }) }) },
+  { file: "app/api/inspections/[inspectionId]/retry/route.ts", method: "POST", action: "inspection.retry", scope: "job", request: (j) => ({ params: { inspectionId: String(j.failedInspectionId) } }) },
+  { file: "app/api/inspections/[inspectionId]/sheet/route.ts", method: "GET", action: "inspection.read", scope: "job", request: (j) => ({ params: inspectionParams(j) }) },
+  { file: "app/api/inspections/[inspectionId]/signoff/route.ts", method: "POST", action: "sheet.signoff", scope: "job", request: (j) => ({ params: inspectionParams(j), ...json(signature) }) },
+  { file: "app/api/inspections/[inspectionId]/tiles/[...path]/route.ts", method: "GET", action: "inspection.read", scope: "job", request: (j) => ({ params: { ...inspectionParams(j), path: ["artwork.dzi"] as never } }) },
+  { file: "app/api/jobs/[jobId]/artworks/route.ts", method: "POST", action: "artwork.upload", scope: "job", request: (j) => ({ params: jobParams(j), ...emptyMultipart() }) },
+  { file: "app/api/jobs/[jobId]/audit/route.ts", method: "GET", action: "job.read", scope: "job", request: (j) => ({ params: jobParams(j) }) },
+  { file: "app/api/jobs/[jobId]/pipeline/route.ts", method: "GET", action: "job.read", scope: "job", request: (j) => ({ params: jobParams(j) }) },
+  { file: "app/api/jobs/[jobId]/route.ts", method: "GET", action: "job.read", scope: "job", request: (j) => ({ params: jobParams(j) }) },
+  { file: "app/api/jobs/[jobId]/scans/route.ts", method: "POST", action: "scan.upload", scope: "job", request: (j) => ({ params: jobParams(j), ...emptyMultipart() }) },
+  { file: "app/api/jobs/[jobId]/status/route.ts", method: "POST", action: "job.update", scope: "job", request: (j) => ({ params: jobParams(j), ...json({ status: "on_press" }) }) },
+  { file: "app/api/jobs/route.ts", method: "GET", action: "job.read", scope: "list", request: () => ({}) },
+  // The public API (/api/v1).
+  { file: "app/api/v1/artwork-revisions/[revisionId]/approve/route.ts", method: "POST", action: "artwork.approve", scope: "job", request: (j) => ({ params: { revisionId: String(j.draftRevisionId) } }) },
+  { file: "app/api/v1/customers/[customerId]/route.ts", method: "PATCH", action: "customer.manage", scope: "plant", request: (j) => ({ params: { customerId: String(j.customerId) }, ...json({ name: j.customerName, contactEmails: [] }) }) },
+  { file: "app/api/v1/customers/route.ts", method: "POST", action: "customer.manage", scope: "plant", request: () => json({ name: `Matrix Mints ${unique()}`, contactEmails: [] }) },
+  { file: "app/api/v1/inspections/[inspectionId]/findings/[findingId]/decision/route.ts", method: "POST", action: "finding.decide", scope: "job", request: (j) => ({ params: findingParams(j), ...json(decision) }) },
+  { file: "app/api/v1/inspections/[inspectionId]/findings/route.ts", method: "GET", action: "inspection.read", scope: "job", request: (j) => ({ params: inspectionParams(j) }) },
+  { file: "app/api/v1/inspections/[inspectionId]/retry/route.ts", method: "POST", action: "inspection.retry", scope: "job", request: (j) => ({ params: { inspectionId: String(j.failedInspectionId) } }) },
+  { file: "app/api/v1/inspections/[inspectionId]/route.ts", method: "GET", action: "inspection.read", scope: "job", request: (j) => ({ params: inspectionParams(j) }) },
+  { file: "app/api/v1/inspections/[inspectionId]/signoff/route.ts", method: "POST", action: "sheet.signoff", scope: "job", request: (j) => ({ params: inspectionParams(j), ...json(signature) }) },
+  { file: "app/api/v1/jobs/[jobId]/artwork-revisions/route.ts", method: "POST", action: "artwork.upload", scope: "job", request: (j) => ({ params: jobParams(j), ...emptyMultipart() }) },
+  { file: "app/api/v1/jobs/[jobId]/route.ts", method: "GET", action: "job.read", scope: "job", request: (j) => ({ params: jobParams(j) }) },
+  { file: "app/api/v1/jobs/[jobId]/route.ts", method: "PATCH", action: "job.update", scope: "job", request: (j) => ({ params: jobParams(j), ...json(validJob(j)) }) },
+  { file: "app/api/v1/jobs/[jobId]/scans/route.ts", method: "POST", action: "scan.upload", scope: "job", request: (j) => ({ params: jobParams(j), ...emptyMultipart() }) },
+  { file: "app/api/v1/jobs/route.ts", method: "GET", action: "job.read", scope: "list", request: () => ({}) },
+  { file: "app/api/v1/jobs/route.ts", method: "POST", action: "job.create", scope: "plant", request: (j) => json({ ...validJob(j), jobNumber: `MX-${unique()}` }) },
+  // --- Press run routes (issue 13: traceability, CSV, reports): read like the sheets they are made of ---
+  { file: "app/api/v1/jobs/[jobId]/run/route.ts", method: "GET", action: "inspection.read", scope: "job", request: (j) => ({ params: jobParams(j) }) },
+  { file: "app/api/v1/jobs/[jobId]/run/sheets.csv/route.ts", method: "GET", action: "inspection.read", scope: "job", request: (j) => ({ params: jobParams(j) }) },
+  { file: "app/api/v1/jobs/[jobId]/run/report.pdf/route.ts", method: "GET", action: "inspection.read", scope: "job", request: (j) => ({ params: jobParams(j) }) },
+  { file: "app/api/v1/inspections/[inspectionId]/report.pdf/route.ts", method: "GET", action: "inspection.read", scope: "job", request: (j) => ({ params: inspectionParams(j) }) },
   // --- end of press run routes ---
 ];
 
-interface Caller {
-  name: string;
-  role: Role | null;
-  customerId: number | null;
+/** Route handlers that answer everybody on purpose, with the reason. */
+const PUBLIC_ROUTES: Record<string, string> = {
+  "app/api/auth/[...nextauth]/route.ts GET": "next-auth's own endpoints (session, csrf, providers); they hold no job data",
+  "app/api/auth/[...nextauth]/route.ts POST": "sign-in itself (rate-limited per account and address, tests/auth)",
+  "app/api/v1/openapi.json/route.ts GET": "the API's description; it holds no data",
+};
+
+const ROOT = path.resolve(import.meta.dirname, "../..");
+const routeModules = import.meta.glob<Record<string, unknown>>("../../app/**/route.ts");
+const moduleOf = (file: string) => {
+  const load = routeModules[`../../${file}`];
+  if (!load) throw new Error(`${file} is not a route file`);
+  return load();
+};
+
+/** The URL path a route file serves, with the case's params filled in. */
+function urlPath(file: string, params: Record<string, string | string[]>): string {
+  const route = file.replace(/^app/, "").replace(/\/route\.ts$/, "");
+  return route.replace(/\[(?:\.\.\.)?(\w+)\]/g, (_, name: string) => [params[name]].flat().join("/"));
+}
+
+interface HeaderCaller extends Caller {
   headers: () => Promise<Record<string, string>>;
 }
 
 let plant: Plant;
-let callers: Caller[];
+let callers: HeaderCaller[];
 
 beforeAll(async () => {
   plant = await makePlant();
   const bearer = (token: string) => async () => ({ authorization: `Bearer ${token}` });
+  const cookie = (actor: Plant["disabled"]) => async () => ({ cookie: await sessionCookie(actor), origin: "http://127.0.0.1:3000" });
   callers = [
     { name: "anonymous", role: null, customerId: null, headers: async () => ({}) },
-    { name: "disabled user (session)", role: null, customerId: null, headers: async () => ({ cookie: await sessionCookie(plant.disabled) }) },
+    { name: "disabled user (session)", role: null, customerId: null, headers: cookie(plant.disabled) },
     { name: "disabled user (token)", role: null, customerId: null, headers: bearer(plant.disabledUserToken) },
     { name: "revoked token", role: null, customerId: null, headers: bearer(plant.revokedToken) },
     { name: "expired token", role: null, customerId: null, headers: bearer(plant.expiredToken) },
     { name: "customer of another customer (token)", role: "customer", customerId: plant.b.customerId, headers: bearer(plant.otherCustomerToken) },
-    { name: "customer of another customer (session)", role: "customer", customerId: plant.b.customerId, headers: async () => ({ cookie: await sessionCookie(plant.otherCustomer) }) },
+    { name: "customer of another customer (session)", role: "customer", customerId: plant.b.customerId, headers: cookie(plant.otherCustomer) },
   ];
   for (const role of Object.keys(plant.actors) as Role[]) {
     const actor = plant.actors[role];
     callers.push({ name: `${role} (token)`, role, customerId: actor.customerId, headers: bearer(plant.tokens[role]) });
-    callers.push({ name: `${role} (session)`, role, customerId: actor.customerId, headers: async () => ({ cookie: await sessionCookie(actor), origin: "http://127.0.0.1:3000" }) });
+    callers.push({ name: `${role} (session)`, role, customerId: actor.customerId, headers: cookie(actor) });
   }
 });
 afterAll(closeDb);
 
-type Expected = "allowed" | 401 | 403 | 404;
-
-function expected(caller: Caller, action: Action, job: PlantJob): Expected {
-  if (caller.role === null) return 401;
-  if (caller.role === "customer" && caller.customerId !== job.customerId) return 404;
-  return POLICY_TABLE[action].includes(caller.role) ? "allowed" : 403;
+async function send(route: RouteCase, caller: HeaderCaller): Promise<{ status: number; text: string; code?: string }> {
+  const handler = (await moduleOf(route.file))[route.method] as Handler;
+  const c = route.request(plant.a, plant);
+  const response = await call(handler, { ...c, method: route.method, path: urlPath(route.file, c.params ?? {}), headers: { ...(c.headers ?? {}), ...(await caller.headers()) } });
+  const text = await response.text();
+  let code: string | undefined;
+  try {
+    code = (JSON.parse(text) as { error?: { code?: string } }).error?.code;
+  } catch {
+    code = undefined; // an image or a DZI file: no error
+  }
+  return { status: response.status, text, code };
 }
 
-describe("authorization matrix", () => {
-  it("POLICY_TABLE is exactly what lib/auth/policy.ts decides", () => {
-    for (const action of ACTIONS) {
-      for (const role of ["admin", "prepress", "qa", "reviewer", "customer"] as Role[]) {
-        const actor = { id: 1, role, customerId: role === "customer" ? 7 : null, name: "", email: "" };
-        expect(can(actor, action, { customerId: 7 }), `${role} ${action}`).toBe(POLICY_TABLE[action].includes(role));
-        if (role === "customer" && action !== "api_token.manage") expect(can(actor, action, { customerId: 8 }), `${role} ${action} other customer`).toBe(false);
-      }
-    }
+describe("authorization matrix: route handlers", () => {
+  it("the table in DEVELOPERS.md is exactly lib/auth/policy.ts's POLICY", () => {
+    expect(TABLE).toEqual(POLICY);
   });
 
-  it("answers every route for every caller as the table says", async () => {
+  it("answers every route for every caller as the table says, and a refusal carries nothing of the job", async () => {
     const mismatches: string[] = [];
     for (const route of ROUTES) {
       for (const caller of callers) {
-        const want = expected(caller, route.action, plant.a);
-        const response = await call(route.handler, { ...route.request(plant.a), headers: { ...(route.request(plant.a).headers ?? {}), ...(await caller.headers()) } });
-        const text = await response.text();
-        const got = response.status;
-        const ok = want === "allowed" ? ![401, 403, 404, 500].includes(got) : got === want;
-        if (!ok) mismatches.push(`${route.name} as ${caller.name}: expected ${want}, got ${got} ${text.slice(0, 120)}`);
-        if (want === 404 || want === 403 || want === 401) {
-          // A refusal carries the error shape and nothing of the job.
-          expect(JSON.parse(text).error.code, `${route.name} as ${caller.name}`).toBeTypeOf("string");
-          expect(text).not.toContain("Kettlewick");
-          expect(text).not.toContain("Herbal tea");
+        const want = expectedAnswer(caller, route.action, route.scope, plant.a.customerId);
+        const { status, text, code } = await send(route, caller);
+        const label = `${route.method} ${route.file} as ${caller.name}`;
+        if (!answerMatches(want, status, code)) mismatches.push(`${label}: expected ${want}, got ${status} ${text.slice(0, 120)}`);
+        if (want !== "allowed") {
+          for (const secret of [plant.a.customerName, plant.a.jobNumber]) expect(text, label).not.toContain(secret);
         }
+        // A list answers a customer user with their own customer's jobs only.
+        if (route.scope === "list" && caller.customerId === plant.b.customerId) expect(text, label).not.toContain(plant.a.jobNumber);
       }
     }
     expect(mismatches).toEqual([]);
   });
 
   it("lists only the caller's own customer's jobs; anonymous and refused tokens get 401", async () => {
+    const listJobs = (await moduleOf("app/api/v1/jobs/route.ts")).GET as Handler;
     for (const caller of callers) {
-      const response = await call(listJobs as Handler, { path: "/api/v1/jobs?limit=100", headers: await caller.headers() });
+      const response = await call(listJobs, { path: "/api/v1/jobs?limit=100", headers: await caller.headers() });
       if (caller.role === null) {
         expect(response.status, caller.name).toBe(401);
         continue;
@@ -242,7 +179,7 @@ describe("authorization matrix", () => {
       let body = (await response.json()) as { items: { id: number; customerId: number }[]; nextCursor: string | null };
       ids.push(...body.items.map((i) => i.id));
       while (body.nextCursor) {
-        const next = await call(listJobs as Handler, { path: `/api/v1/jobs?limit=100&cursor=${body.nextCursor}`, headers: await caller.headers() });
+        const next = await call(listJobs, { path: `/api/v1/jobs?limit=100&cursor=${body.nextCursor}`, headers: await caller.headers() });
         body = await next.json();
         ids.push(...body.items.map((i) => i.id));
       }
@@ -255,16 +192,51 @@ describe("authorization matrix", () => {
     }
   });
 
+  it("the policy answers before the body is read: a job change with an empty body is 403 or 404 for those without the right, 422 for the others", async () => {
+    for (const file of ["app/api/v1/jobs/[jobId]/route.ts", "app/api/jobs/[jobId]/status/route.ts"]) {
+      const route = ROUTES.find((r) => r.file === file && r.method !== "GET")!;
+      for (const caller of callers) {
+        const want = expectedAnswer(caller, route.action, route.scope, plant.a.customerId);
+        const { status } = await send({ ...route, request: (j) => ({ ...route.request(j, plant), body: "{}" }) }, caller);
+        expect(status, `${file} as ${caller.name}`).toBe(want === "allowed" ? 422 : want);
+      }
+    }
+  });
+
   it("refuses a cookie-authenticated change sent from another site, but not the same change with a token", async () => {
+    const retry = (await moduleOf("app/api/v1/inspections/[inspectionId]/retry/route.ts")).POST as Handler;
     const job = plant.b;
-    const request = post(`/api/v1/inspections/${job.failedInspectionId}/retry`, { inspectionId: String(job.failedInspectionId) });
+    const request: Call = { method: "POST", path: `/api/v1/inspections/${job.failedInspectionId}/retry`, params: { inspectionId: String(job.failedInspectionId) } };
     const cookie = await sessionCookie(plant.actors.qa);
-    const fromElsewhere = await call(v1Retry as Handler, { ...request, headers: { cookie, origin: "https://elsewhere.example" } });
+    const fromElsewhere = await call(retry, { ...request, headers: { cookie, origin: "https://elsewhere.example" } });
     expect(fromElsewhere.status).toBe(403);
     expect((await fromElsewhere.json()).error.code).toBe("cross_origin");
-    const crossSite = await call(v1Retry as Handler, { ...request, headers: { cookie, "sec-fetch-site": "cross-site" } });
+    const crossSite = await call(retry, { ...request, headers: { cookie, "sec-fetch-site": "cross-site" } });
     expect(crossSite.status).toBe(403);
-    const withToken = await call(v1Retry as Handler, { ...request, headers: { authorization: `Bearer ${plant.tokens.qa}`, origin: "https://elsewhere.example" } });
+    const withToken = await call(retry, { ...request, headers: { authorization: `Bearer ${plant.tokens.qa}`, origin: "https://elsewhere.example" } });
     expect(withToken.status).toBe(200);
+  });
+
+  it("guard: every exported handler of every route.ts under app/ is in ROUTES or PUBLIC_ROUTES", async () => {
+    const files: string[] = [];
+    const walk = (dir: string) => {
+      for (const entry of readdirSync(path.join(ROOT, dir), { withFileTypes: true })) {
+        if (entry.isDirectory()) walk(`${dir}/${entry.name}`);
+        else if (entry.name === "route.ts") files.push(`${dir}/${entry.name}`);
+      }
+    };
+    walk("app");
+    expect(files.length).toBeGreaterThan(30);
+    const covered = new Set([...ROUTES.map((r) => `${r.file} ${r.method}`), ...Object.keys(PUBLIC_ROUTES)]);
+    const missing: string[] = [];
+    for (const file of files) {
+      const exported = Object.keys(await moduleOf(file)).filter((name) => (HTTP_METHODS as readonly string[]).includes(name));
+      for (const method of exported) if (!covered.has(`${file} ${method}`)) missing.push(`${method} ${file}`);
+    }
+    expect(missing, "route handlers missing from the authorization matrix").toEqual([]);
+    // And nothing listed that no longer exists.
+    const existing = new Set<string>();
+    for (const file of files) for (const name of Object.keys(await moduleOf(file))) existing.add(`${file} ${name}`);
+    expect([...covered].filter((key) => !existing.has(key))).toEqual([]);
   });
 });

@@ -11,6 +11,7 @@ import { apiTokens, artworkRevisions, customers, findings, inspections, jobs, sc
 import type { Actor, Role } from "@/lib/auth/policy";
 import { createApiToken } from "@/lib/auth/tokens";
 import { env } from "@/lib/env";
+import { keys, sourceObjectId } from "@/storage/keys";
 import { ensureBucket, putObject } from "@/storage/objects";
 import { ensureProfiles } from "../pipeline/support/fixtures";
 
@@ -18,7 +19,9 @@ export const BASE = "http://127.0.0.1:3000";
 
 export interface PlantJob {
   customerId: number;
+  customerName: string;
   jobId: number;
+  jobNumber: string;
   approvedRevisionId: number;
   draftRevisionId: number;
   inspectionId: number;
@@ -49,10 +52,12 @@ async function makeUser(role: Role, customerId: number | null, tag: string, disa
 }
 
 async function makeJob(tag: string, customerName: string): Promise<PlantJob> {
-  const [{ id: customerId }] = await db.insert(customers).values({ name: `${customerName} ${tag}` }).$returningId();
+  const name = `${customerName} ${tag}`;
+  const [{ id: customerId }] = await db.insert(customers).values({ name }).$returningId();
+  const jobNumber = `API-${tag}-${customerId}`;
   const [{ id: jobId }] = await db
     .insert(jobs)
-    .values({ customerId, jobNumber: `API-${tag}-${customerId}`, title: "Herbal tea 20 bags, folding carton", upsRows: 2, upsColumns: 3 })
+    .values({ customerId, jobNumber, title: "Herbal tea 20 bags, folding carton", upsRows: 2, upsColumns: 3 })
     .$returningId();
   const revision = (n: number, status: "approved" | "draft") => ({
     jobId,
@@ -66,27 +71,43 @@ async function makeJob(tag: string, customerName: string): Promise<PlantJob> {
     status,
     rasterStatus: status === "approved" ? ("ready" as const) : ("none" as const),
   });
-  const [{ id: approvedRevisionId }] = await db.insert(artworkRevisions).values(revision(1, "approved")).$returningId();
+  const approved = revision(1, "approved");
+  const [{ id: approvedRevisionId }] = await db.insert(artworkRevisions).values(approved).$returningId();
+  await putObject(keys.preview(sourceObjectId(approved.sourceKey)), PNG, "image/png");
+  const tilesPrefix = `tiles/${randomUUID()}/`;
+  await putObject(`${tilesPrefix}artwork.dzi`, Buffer.from('<?xml version="1.0"?><Image/>'), "application/xml");
   const [{ id: draftRevisionId }] = await db.insert(artworkRevisions).values(revision(2, "draft")).$returningId();
+  const { inspectionId, findingId } = await addInspectedSheet({ jobId, approvedRevisionId }, 17, tilesPrefix);
   const [profile] = await db.select().from(toleranceProfiles).limit(1);
-  const scan = (n: number) => ({
-    jobId,
-    artworkRevisionId: approvedRevisionId,
-    sheetNumber: n,
-    objectKey: `scans/${randomUUID()}.png`,
-    sha256: sha(),
-    dpi: 150,
-    byteSize: 2000,
-    originalFilename: `sheet-${n}.png`,
-    contentType: "image/png",
-  });
-  const [{ id: scanId }] = await db.insert(scans).values(scan(17)).$returningId();
-  const [{ id: failedScanId }] = await db.insert(scans).values(scan(18)).$returningId();
+  const [{ id: failedScanId }] = await db.insert(scans).values(scanRow({ jobId, approvedRevisionId }, 18)).$returningId();
+  const [{ id: failedInspectionId }] = await db
+    .insert(inspections)
+    .values({ scanId: failedScanId, artworkRevisionId: approvedRevisionId, toleranceProfileId: profile.id, status: "failed", errorCode: "unreadable_scan", errorMessage: "The scan could not be read." })
+    .$returningId();
+  return { customerId, customerName: name, jobId, jobNumber, approvedRevisionId, draftRevisionId, inspectionId, failedInspectionId, findingId };
+}
+
+const scanRow = (job: { jobId: number; approvedRevisionId: number }, n: number) => ({
+  jobId: job.jobId,
+  artworkRevisionId: job.approvedRevisionId,
+  sheetNumber: n,
+  objectKey: `scans/${randomUUID()}.png`,
+  sha256: sha(),
+  dpi: 150,
+  byteSize: 2000,
+  originalFilename: `sheet-${n}.png`,
+  contentType: "image/png",
+});
+
+/** A scanned sheet of the job with a finished inspection and one undecided finding (an extra-ink spot in up 2). */
+export async function addInspectedSheet(job: { jobId: number; approvedRevisionId: number }, sheetNumber: number, tilesPrefix: string | null = null) {
+  const [profile] = await db.select().from(toleranceProfiles).limit(1);
+  const [{ id: scanId }] = await db.insert(scans).values(scanRow(job, sheetNumber)).$returningId();
   const [{ id: inspectionId }] = await db
     .insert(inspections)
     .values({
       scanId,
-      artworkRevisionId: approvedRevisionId,
+      artworkRevisionId: job.approvedRevisionId,
       toleranceProfileId: profile.id,
       status: "done",
       stage: "done",
@@ -104,11 +125,9 @@ async function makeJob(tag: string, customerName: string): Promise<PlantJob> {
       driftDeltaE00: 1.2,
       startedAt: new Date(),
       finishedAt: new Date(),
+      tilesStatus: tilesPrefix ? "ready" : "none",
+      tilesPrefix,
     })
-    .$returningId();
-  const [{ id: failedInspectionId }] = await db
-    .insert(inspections)
-    .values({ scanId: failedScanId, artworkRevisionId: approvedRevisionId, toleranceProfileId: profile.id, status: "failed", errorCode: "unreadable_scan", errorMessage: "The scan could not be read." })
     .$returningId();
   const [{ id: findingId }] = await db
     .insert(findings)
@@ -128,16 +147,17 @@ async function makeJob(tag: string, customerName: string): Promise<PlantJob> {
       cropDifferenceKey: CROP_KEY,
     })
     .$returningId();
-  return { customerId, jobId, approvedRevisionId, draftRevisionId, inspectionId, failedInspectionId, findingId };
+  return { inspectionId, findingId };
 }
 
-/** One tiny PNG stands in for every crop image. */
+/** One tiny PNG stands in for every crop image and preview. */
 const CROP_KEY = `crops/${randomUUID()}.png`;
+const PNG = Buffer.from("89504e470d0a1a0a", "hex");
 
 export async function makePlant(): Promise<Plant> {
   await ensureProfiles();
   await ensureBucket();
-  await putObject(CROP_KEY, Buffer.from("89504e470d0a1a0a", "hex"), "image/png");
+  await putObject(CROP_KEY, PNG, "image/png");
   const tag = randomUUID().slice(0, 8);
   const a = await makeJob(tag, "Kettlewick Tea Company");
   const b = await makeJob(tag, "Brambleford Pharma");

@@ -35,6 +35,14 @@ describe("personal API tokens", () => {
     expect(audit.map((a) => a.action)).toEqual(expect.arrayContaining(["api_token.create", "api_token.use"]));
   });
 
+  it("twenty requests arriving together with a fresh token record its use once, not twenty times", async () => {
+    const { id, token } = await createApiToken(null, plant.actors.qa.id, "Scanner station, press 3");
+    const checks = await Promise.all(Array.from({ length: 20 }, () => checkApiToken(token)));
+    expect(checks.every((c) => c.ok)).toBe(true);
+    const uses = (await db.select().from(auditEvents).where(eq(auditEvents.subjectId, String(id)))).filter((a) => a.action === "api_token.use");
+    expect(uses).toHaveLength(1);
+  });
+
   it("acts with the user's current role and stops working when the user is disabled", async () => {
     const { token } = await createApiToken(null, plant.actors.reviewer.id, "reviewer");
     const ok = await checkApiToken(token);

@@ -9,7 +9,7 @@ function band(width: number, rows: string[], kind = PIXEL_EXTRA_INK, e = 10): Ba
   rows.forEach((row, y) => [...row].forEach((c, x) => {
     if (c === "#") { deltaE[y * width + x] = e; k[y * width + x] = kind; }
   }));
-  return { deltaE, score: deltaE, kind: k, structural: new Uint8Array(width * rows.length), flagged: 0, candidates: 0, screenMs: 0 };
+  return { deltaE, score: deltaE, kind: k, structural: new Uint8Array(width * rows.length), shift: new Int8Array(width * rows.length * 3), flagged: 0, candidates: 0, screenMs: 0 };
 }
 
 const rules = { dpi: 254, minStrongPx: 1, minAreaMm2: 0, mergeMm: 0, pageMm: { widthMm: 10, heightMm: 10 } };
@@ -53,6 +53,33 @@ describe("regions to findings", () => {
     const weak = band(20, ["..........#....."], PIXEL_COLOUR_SHIFT, 3);
     const merged = regionsToFindings([...c.regions(), ...(() => { const w = new RegionCollector(20, 5); w.addBand(weak, 1, 5); return w.regions(); })()], { ...rules, mergeMm: 0.25 });
     expect(merged.findings.map((f) => [f.xMm, f.wMm])).toEqual([[0, 0.6], [1.5, 0.1]]);
+  });
+
+  it("drops a colour region whose differences point every way (a beating screen) but keeps a speck of ink inside it", () => {
+    // 10 × 10 px of colour-shift pixels whose CIELAB differences alternate ±8 in a* (mean vector 0), with a
+    // 2 × 2 px speck of extra ink in the middle; and a second, coherent patch of 11 × 10 px (+8 in b* everywhere).
+    const rows = Array.from({ length: 10 }, () => "##########.###########");
+    const b = band(22, rows, PIXEL_COLOUR_SHIFT, 8);
+    for (let y = 0; y < 10; y++) for (let x = 0; x < 22; x++) {
+      const i = y * 22 + x;
+      if (b.deltaE[i] === 0) continue;
+      if (x < 10) b.shift[i * 3 + 1] = (x + y) % 2 === 0 ? 8 : -8;
+      else b.shift[i * 3 + 2] = 8;
+    }
+    for (const [x, y] of [[4, 4], [5, 4], [4, 5], [5, 5]]) { b.kind[y * 22 + x] = PIXEL_EXTRA_INK; b.deltaE[y * 22 + x] = b.score[y * 22 + x] = 20; }
+    const ink = new RegionCollector(22, 5, false), colour = new RegionCollector(22, 5, true);
+    ink.addBand(b, 10, 0);
+    colour.addBand(b, 10, 0);
+    const { findings } = regionsToFindings([...ink.regions(), ...colour.regions()], rules);
+    expect(findings.map((f) => [f.kind, f.xMm, f.wMm])).toEqual([["colour_shift", 1.1, 1.1], ["extra_ink", 0.4, 0.2]]);
+  });
+
+  it("calls a long thin region a streak by its second moments (a line of length L has σ = L / √12)", () => {
+    const c = new RegionCollector(120, 5);
+    // 254 dpi, 0.1 mm a pixel: a 100 × 1 px line (10 mm × 0.1 mm) and a 3 × 3 px spot.
+    c.addBand(band(120, ["#".repeat(100) + "...............###", ".".repeat(117) + "###", ".".repeat(117) + "###"]), 3, 0);
+    const { findings } = regionsToFindings(c.regions(), { ...rules, pageMm: { widthMm: 12, heightMm: 1 } });
+    expect(findings.map((f) => f.kind)).toEqual(["streak", "extra_ink"]);
   });
 
   it("numbers ups row-major from 1 inside the ups' area, null outside", () => {

@@ -1,6 +1,6 @@
 import { PDFDocument, PDFHexString, PDFName, PDFNumber, rgb } from "pdf-lib";
 import { describe, expect, it } from "vitest";
-import { rasterisePage, readPdfPages } from "@/lib/imaging/rasterise";
+import { artworkAtDpi, rasterisePage, readPdfPages } from "@/lib/imaging/rasterise";
 import { ImagingError, type RgbaImage } from "@/lib/imaging/types";
 import { makeCartonPdf, PT_PER_MM } from "../support/carton";
 
@@ -128,6 +128,22 @@ describe("rasterisePage", () => {
     // Text covers roughly a tenth of its line boxes (common practice, no published source): a broad band.
     expect(inside / area).toBeGreaterThan(0.04);
     expect(inside / area).toBeLessThan(0.3);
+  });
+});
+
+describe("artworkAtDpi", () => {
+  it("reduces a 300 dpi raster to the grid and tones rasterisePage gives at 150 dpi, and leaves it alone at 300", async () => {
+    const { pdf } = await makeCartonPdf({ widthMm: 150, heightMm: 110, rows: 1, columns: 2 });
+    const fine = await rasterisePage(pdf, { dpi: 300 });
+    const direct = await rasterisePage(pdf, { dpi: 150 });
+    const reduced = await artworkAtDpi(fine, 150);
+    expect([reduced.width, reduced.height, reduced.dpi]).toEqual([direct.width, direct.height, 150]);
+    let sum = 0;
+    for (let i = 0; i < direct.data.length; i += 4) sum += Math.abs(direct.data[i + 1] - reduced.data[i + 1]);
+    // Mean green difference under 3 of 255 codes: the two differ only in how edges are anti-aliased.
+    expect(sum / (direct.data.length / 4)).toBeLessThan(3);
+    expect(await artworkAtDpi(fine, 300)).toBe(fine);
+    expect(await artworkAtDpi(fine, 290)).toBe(fine);
   });
 });
 

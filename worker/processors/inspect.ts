@@ -6,6 +6,7 @@ import sharp from "sharp";
 import { env } from "@/lib/env";
 import { inspectSheet, likelyScannerBlurPx } from "@/lib/imaging/inspect";
 import { loadScan } from "@/lib/imaging/load-scan";
+import { artworkAtDpi } from "@/lib/imaging/rasterise";
 import { ImagingError, type ArtworkRaster, type InspectionProgress } from "@/lib/imaging/types";
 import {
   failInspection,
@@ -102,13 +103,15 @@ export default async function inspect(job: SandboxedJob<InspectData>, token?: st
   const run = work.inspection.attempts + 1;
   const progress = progressWriter(id, job);
   try {
-    const artwork = await loadArtwork(work);
+    const approved = await loadArtwork(work);
     await progress("load", 3);
     const scan = await loadScan(new Uint8Array(await getObjectBuffer(work.scan.objectKey)), {
       dpi: work.scan.dpi > 0 ? work.scan.dpi : undefined,
       maxMegapixels: env.SCAN_MAX_MEGAPIXELS,
     });
     if (work.scan.dpi !== Math.round(scan.dpi)) await setScanDpi(work.scan.id, scan.dpi);
+    // A scan coarser than the approved raster is compared at its own resolution (the tiles follow it).
+    const artwork = await artworkAtDpi(approved, scan.dpi);
     await progress("align", 8);
 
     const r = work.revision;

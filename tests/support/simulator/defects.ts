@@ -44,7 +44,7 @@ export function applyDefects(img: RgbaImage & { dpi: number }, defects: DefectSp
       paint(img, Math.min(x0, x1) - half - 1, Math.min(y0, y1) - half - 1, Math.max(x0, x1) + half + 1, Math.max(y0, y1) + half + 1,
         (x, y) => half + 0.5 - dist(x, y), (v, _c, cov) => v + (255 - v) * 0.85 * cov);
       const m = d.widthMm / 2;
-      truths.push({ type: "scratch", boxMm: { x: Math.min(d.x0Mm, d.x1Mm) - m, y: Math.min(d.y0Mm, d.y1Mm) - m, w: Math.abs(d.x1Mm - d.x0Mm) + 2 * m, h: Math.abs(d.y1Mm - d.y0Mm) + 2 * m }, kind: "missing_ink" });
+      truths.push({ type: "scratch", boxMm: { x: Math.min(d.x0Mm, d.x1Mm) - m, y: Math.min(d.y0Mm, d.y1Mm) - m, w: Math.abs(d.x1Mm - d.x0Mm) + 2 * m, h: Math.abs(d.y1Mm - d.y0Mm) + 2 * m }, kind: "streak" });
     } else {
       const r = d.rectMm, soft = px(0.3);
       const x0 = px(r.x), y0 = px(r.y), x1 = px(r.x + r.w), y1 = px(r.y + r.h);

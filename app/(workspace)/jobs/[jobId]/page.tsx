@@ -1,11 +1,10 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { notFound } from "next/navigation";
 import { JobDetails } from "@/components/jobs/job-details";
 import { JobPipeline } from "@/components/pipeline/job-pipeline";
 import { requireActor } from "@/lib/auth/session";
-import { AppError } from "@/lib/errors";
-import { getJobPipeline, type JobPipelineView } from "@/lib/pipeline/view";
+import { loadForPage } from "@/lib/page-load";
+import { getJobPipeline } from "@/lib/pipeline/view";
 
 export const metadata: Metadata = { title: "Job" };
 export const dynamic = "force-dynamic";
@@ -13,15 +12,7 @@ export const dynamic = "force-dynamic";
 export default async function JobPage(props: { params: Promise<{ jobId: string }> }) {
   const params = await props.params;
   const actor = await requireActor();
-  const jobId = Number(params.jobId);
-  if (!Number.isSafeInteger(jobId) || jobId <= 0) notFound();
-  let view: JobPipelineView;
-  try {
-    view = await getJobPipeline(actor, jobId);
-  } catch (error) {
-    if (error instanceof AppError && (error.status === 404 || error.status === 403)) notFound();
-    throw error;
-  }
+  const view = await loadForPage(params.jobId, (id) => getJobPipeline(actor, id), { hideForbidden: true });
   const { job } = view;
   return (
     <div className="space-y-6">

@@ -1,25 +1,16 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { notFound } from "next/navigation";
 import { AuditTrail } from "@/components/audit/audit-trail";
 import { requireActor } from "@/lib/auth/session";
-import { AppError } from "@/lib/errors";
-import { getJob, type JobDetail } from "@/lib/jobs/jobs";
+import { getJob } from "@/lib/jobs/jobs";
+import { loadForPage } from "@/lib/page-load";
 
 export const metadata: Metadata = { title: "Job audit trail" };
 
 // Whoever may read the job reads its trail: it is the job's record for the customer and for auditors.
 export default async function JobAuditPage(props: { params: Promise<{ jobId: string }> }) {
   const actor = await requireActor();
-  const jobId = Number((await props.params).jobId);
-  if (!Number.isSafeInteger(jobId) || jobId <= 0) notFound();
-  let job: JobDetail;
-  try {
-    job = await getJob(actor, jobId);
-  } catch (error) {
-    if (error instanceof AppError && error.status === 404) notFound();
-    throw error;
-  }
+  const job = await loadForPage((await props.params).jobId, (id) => getJob(actor, id));
   return (
     <div className="space-y-6">
       <div>

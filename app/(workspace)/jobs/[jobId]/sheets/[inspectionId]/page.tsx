@@ -3,8 +3,8 @@ import Link from "next/link";
 import { notFound } from "next/navigation";
 import { SheetWorkspace } from "@/components/review/sheet-workspace";
 import { requireActor } from "@/lib/auth/session";
-import { AppError } from "@/lib/errors";
-import { getSheetView, type SheetView } from "@/lib/review/sheet";
+import { loadForPage } from "@/lib/page-load";
+import { getSheetView } from "@/lib/review/sheet";
 
 export const metadata: Metadata = { title: "Sheet" };
 export const dynamic = "force-dynamic";
@@ -15,15 +15,7 @@ const verdictText = { pending: "Awaiting sign-off", passed: "Signed: passed", fa
 export default async function SheetPage(props: { params: Promise<{ jobId: string; inspectionId: string }> }) {
   const params = await props.params;
   const actor = await requireActor();
-  const inspectionId = Number(params.inspectionId);
-  if (!Number.isSafeInteger(inspectionId) || inspectionId <= 0) notFound();
-  let view: SheetView;
-  try {
-    view = await getSheetView(actor, inspectionId);
-  } catch (error) {
-    if (error instanceof AppError && (error.status === 404 || error.status === 403)) notFound();
-    throw error;
-  }
+  const view = await loadForPage(params.inspectionId, (id) => getSheetView(actor, id), { hideForbidden: true });
   if (String(view.job.id) !== params.jobId) notFound();
   return (
     <div className="space-y-4">
