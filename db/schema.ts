@@ -244,6 +244,8 @@ export const scans = mysqlTable(
   (t) => [
     // The same file uploaded twice to one job is recognised, not stored twice.
     uniqueIndex("scans_job_sha256_uq").on(t.jobId, t.sha256),
+    // A sheet number is unique in a press run (one artwork revision); rows without a number are not compared.
+    uniqueIndex("scans_revision_sheet_uq").on(t.artworkRevisionId, t.sheetNumber),
     index("scans_artwork_revision_idx").on(t.artworkRevisionId),
   ],
 );

@@ -7,6 +7,7 @@ import { sheetFailedMessage, sheetReadyMessage, sheetSignedMessage, type SheetMa
 import { signedMail } from "@/lib/review/signed-mail";
 import { countFindings, loadInspectionWork, usersWithRoles } from "@/lib/pipeline/records";
 import type { MailData } from "@/lib/queue/queues";
+import { spanToPullOf } from "@/lib/run/traceability";
 
 export async function sendPipelineMail(job: Job<MailData>): Promise<{ sent: number }> {
   const data = job.data;
@@ -35,6 +36,7 @@ export async function sendPipelineMail(job: Job<MailData>): Promise<{ sent: numb
     // There is no per-customer reviewer assignment yet: every active reviewer is told.
     recipients = await usersWithRoles(["reviewer"]);
   } else {
+    if (data.reason === "verdict_failed") context.spanToPull = await spanToPullOf(work.inspection.id);
     message = sheetFailedMessage(context, data.reason);
     recipients = await usersWithRoles(["qa", "prepress"]);
   }

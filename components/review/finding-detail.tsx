@@ -5,6 +5,7 @@ import { useEffect, useRef, useState } from "react";
 import type { SheetFinding } from "@/lib/review/sheet";
 import { formatLocal, LocalTime } from "./local-time";
 import { DECISION_LABELS, KIND_LABELS, REASON_LABELS } from "./labels";
+import { PriorSuggestion, RecurrenceNote } from "./run-memory";
 
 export const isTyping = (target: EventTarget | null) => {
   const el = target as HTMLElement | null;
@@ -13,6 +14,7 @@ export const isTyping = (target: EventTarget | null) => {
 
 interface Props {
   inspectionId: number;
+  jobId: number;
   finding: SheetFinding;
   mayDecide: boolean;
   onDecided: (advance: boolean) => void;
@@ -21,7 +23,7 @@ interface Props {
 const fmt = (n: number, d = 1) => n.toFixed(d);
 
 /** Shown with key={finding.id}, so its form starts afresh for each finding. */
-export function FindingDetail({ inspectionId, finding: f, mayDecide, onDecided }: Props) {
+export function FindingDetail({ inspectionId, jobId, finding: f, mayDecide, onDecided }: Props) {
   const [reason, setReason] = useState<"no_defect" | "within_tolerance">(f.reason === "within_tolerance" ? "within_tolerance" : "no_defect");
   const [comment, setComment] = useState(f.comment ?? "");
   const [busy, setBusy] = useState(false);
@@ -53,6 +55,15 @@ export function FindingDetail({ inspectionId, finding: f, mayDecide, onDecided }
   }
 
   const accept = () => void send("POST", { decision: "accepted", reason });
+  // Run memory's suggestion, confirmed by the reviewer: the earlier sheet's reason, with a note of where it came from.
+  const confirmPrior = () =>
+    f.prior &&
+    void send("POST", {
+      decision: "accepted",
+      reason: f.prior.reason === "within_tolerance" ? "within_tolerance" : "no_defect",
+      comment: comment.trim() || `As accepted on sheet ${f.prior.sheetNumber ?? "without number"}.`,
+      confirmsPrior: true,
+    });
   const reject = () => {
     if (!comment.trim()) {
       setMessage({ tone: "error", text: "Say in the comment what is wrong before you reject the finding." });
@@ -87,6 +98,8 @@ export function FindingDetail({ inspectionId, finding: f, mayDecide, onDecided }
           {DECISION_LABELS[f.decision]}
         </span>
       </div>
+      <RecurrenceNote recurrence={f.recurrence} />
+      <PriorSuggestion finding={f} jobId={jobId} mayDecide={mayDecide} busy={busy} onConfirm={confirmPrior} />
       {f.crops ? (
         <div className="grid grid-cols-3 gap-1">
           {(["artwork", "scan", "difference"] as const).map((k) => (

@@ -8,6 +8,7 @@ import type { SheetView } from "@/lib/review/sheet";
 import { DeepZoom } from "./deep-zoom";
 import { FindingDetail, isTyping } from "./finding-detail";
 import { DECISION_LABELS, KIND_LABELS } from "./labels";
+import { RecurrenceBadge } from "./run-memory";
 import { SignoffPanel } from "./signoff-panel";
 
 async function fetchSheet(id: number): Promise<SheetView> {
@@ -109,6 +110,8 @@ function Workspace({ initial }: { initial: SheetView }) {
                       >
                         <span className="w-6 text-right font-semibold tabular-nums">{f.number}</span>
                         <span className="flex-1 truncate">{KIND_LABELS[f.kind]}{f.up ? ` · up ${f.up}` : ""}</span>
+                        <RecurrenceBadge recurrence={f.recurrence} />
+                        {f.prior && f.decision === "pending" && <span className="text-xs text-accent">on sheet {f.prior.sheetNumber ?? "?"}</span>}
                         <span className={`text-xs font-medium ${f.decision === "accepted" ? "text-ok" : f.decision === "rejected" ? "text-danger" : "text-caution"}`}>{DECISION_LABELS[f.decision]}</span>
                       </button>
                     </li>
@@ -119,12 +122,17 @@ function Workspace({ initial }: { initial: SheetView }) {
                   {sheet.may.decide && (
                     <>
                       {" "}· <kbd className="rounded border border-rule px-1">A</kbd> accept · <kbd className="rounded border border-rule px-1">R</kbd> reject
+                      {sheet.findings.some((f) => f.prior && f.decision === "pending") && (
+                        <>
+                          {" "}· <kbd className="rounded border border-rule px-1">C</kbd> confirm as on an earlier sheet
+                        </>
+                      )}
                     </>
                   )}
                 </p>
                 {selected && (
                   <div className="border-t border-rule pt-3">
-                    <FindingDetail key={selected.id} inspectionId={sheet.inspectionId} finding={selected} mayDecide={sheet.may.decide} onDecided={(advance) => void afterDecision(advance)} />
+                    <FindingDetail key={selected.id} inspectionId={sheet.inspectionId} jobId={sheet.job.id} finding={selected} mayDecide={sheet.may.decide} onDecided={(advance) => void afterDecision(advance)} />
                   </div>
                 )}
               </>

@@ -4,6 +4,7 @@ import { createDocument, type ZodOpenApiOperationObject, type ZodOpenApiResponse
 import { customerInput } from "@/lib/customers/schema";
 import { jobInput } from "@/lib/jobs/schema";
 import { decideBody, signBody } from "@/lib/review/inputs";
+import { runPaths } from "./openapi-run";
 import * as s from "./schemas";
 
 const errorContent = { "application/json": { schema: s.ErrorBody } };
@@ -150,6 +151,8 @@ export function openApiDocument() {
           requestParams: inspectionParams,
         }),
       },
+      // Press runs: traceability, CSV and reports (lib/api/openapi-run.ts).
+      ...runPaths,
     },
   });
 }

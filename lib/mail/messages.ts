@@ -10,6 +10,8 @@ export interface SheetMailContext {
   sheetNumber: number | null;
   findingsCount: number;
   errorMessage?: string | null;
+  /** For a sheet signed failed: the sheets to pull from the delivery, in words, with their count. */
+  spanToPull?: string | null;
 }
 
 export interface Message {
@@ -19,6 +21,8 @@ export interface Message {
 
 export const jobLink = (jobId: number, inspectionId?: number) =>
   new URL(`/jobs/${jobId}${inspectionId ? `#inspection-${inspectionId}` : ""}`, env.APP_URL).toString();
+
+const appLink = (path: string) => new URL(path, env.APP_URL).toString();
 
 const sheetName = (c: SheetMailContext) => (c.sheetNumber === null ? "a sheet without a number" : `sheet ${c.sheetNumber}`);
 const caution =
@@ -57,7 +61,10 @@ export function sheetFailedMessage(c: SheetMailContext, reason: "inspection_fail
       "",
       reason === "inspection_failed"
         ? "QA can fix the cause and press Retry on the job page."
-        : "Please check the press and the pulled sheets.",
+        : c.spanToPull
+          ? `Pull from the delivery: ${c.spanToPull}. Please check the press and the pulled sheets.`
+          : "Please check the press and the pulled sheets.",
+      ...(reason === "verdict_failed" ? ["", `The press run: ${appLink(`/jobs/${c.jobId}/run`)}`] : []),
       "",
       `Open the job: ${jobLink(c.jobId, c.inspectionId)}`,
     ].join("\n"),
@@ -85,7 +92,9 @@ export function sheetSignedMessage(c: SignedMailContext): Message {
       `${c.findingsCount} finding${c.findingsCount === 1 ? "" : "s"} decided, ${c.rejectedCount} rejected as defects.`,
       `Record fingerprint (sha256): ${c.recordSha256}`,
       "",
-      `Open the sheet: ${new URL(`/jobs/${c.jobId}/sheets/${c.inspectionId}`, env.APP_URL).toString()}`,
+      `Open the sheet: ${appLink(`/jobs/${c.jobId}/sheets/${c.inspectionId}`)}`,
+      `Sheet report (PDF): ${appLink(`/api/v1/inspections/${c.inspectionId}/report.pdf`)}`,
+      `The press run: ${appLink(`/jobs/${c.jobId}/run`)}`,
       "",
       caution,
     ].join("\n"),

@@ -4,6 +4,7 @@ import { and, eq, inArray, ne, sql } from "drizzle-orm";
 import { db } from "@/db/client";
 import { artworkRevisions, customers, findings, inspections, jobs, scans, toleranceProfiles, users } from "@/db/schema";
 import type { Finding, InspectionResult, ToleranceProfile } from "@/lib/imaging/types";
+import { refreshRunMemory, revisionOfInspection } from "@/lib/run/memory-store";
 
 const um = (mm: number) => Math.round(mm * 1000);
 
@@ -162,6 +163,8 @@ export async function saveInspectionResult(inspectionId: number, result: Inspect
         version: sql`${inspections.version} + 1`,
       })
       .where(eq(inspections.id, inspectionId));
+    const revisionId = await revisionOfInspection(tx, inspectionId);
+    if (revisionId) await refreshRunMemory(tx, revisionId);
   });
 }
 

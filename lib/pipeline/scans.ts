@@ -1,6 +1,6 @@
 // Scans of pulled press sheets (QA): stored, recorded with their sheet number, one inspection queued per scan.
 import { and, asc, eq, inArray } from "drizzle-orm";
-import { db } from "@/db/client";
+import { db, type Tx } from "@/db/client";
 import { inspections, scans, toleranceProfiles } from "@/db/schema";
 import { recordAudit } from "@/lib/audit";
 import type { Actor } from "@/lib/auth/policy";
@@ -9,6 +9,7 @@ import { AppError } from "@/lib/errors";
 import { enqueueInspection } from "@/lib/queue/queues";
 import { receiveUpload, type ReceivedFile } from "@/lib/uploads/receive";
 import { parseSheetNumber, sheetNumberFromName } from "@/lib/uploads/sheet-number";
+import { isDuplicateKey } from "@/lib/validation";
 import { keys, newObjectId, type ScanFormat } from "@/storage/keys";
 import { conflict, loadJobFor } from "./access";
 import { currentApprovedRevision } from "./artworks";
@@ -57,6 +58,44 @@ function parseDeclaredDpi(text: string | undefined): number {
   return value;
 }
 
+/**
+ * A sheet number is unique in a run (the artwork revision's scans): a new file with a number the run already has,
+ * or two files of one upload with the same number, refuse the whole upload (nothing is stored). The same file sent
+ * again is not a repeat of a number; it is recognised as already uploaded.
+ */
+async function refuseRepeatedSheetNumbers(tx: Tx, revisionId: number, files: ReceivedFile[], numbers: (number | null)[], knownSha256: string[]) {
+  const fresh = files.map((file, i) => ({ file, number: numbers[i] })).filter((f) => f.number !== null && !knownSha256.includes(f.file.sha256));
+  const byNumber = new Map<number, ReceivedFile>();
+  for (const { file, number } of fresh) {
+    const other = byNumber.get(number!);
+    if (other && other.sha256 !== file.sha256) {
+      throw new AppError(
+        "repeated_sheet_number",
+        `“${other.fileName}” and “${file.fileName}” both carry sheet number ${number}; a sheet number is unique in a press run. Nothing was stored: correct the number and upload again.`,
+        422,
+      );
+    }
+    byNumber.set(number!, file);
+  }
+  if (byNumber.size === 0) return;
+  const taken = await tx
+    .select({ sheetNumber: scans.sheetNumber, fileName: scans.originalFilename, at: scans.createdAt })
+    .from(scans)
+    .where(and(eq(scans.artworkRevisionId, revisionId), inArray(scans.sheetNumber, [...byNumber.keys()])))
+    .limit(1);
+  if (taken.length > 0) throw repeatedSheet(taken[0].sheetNumber!, byNumber.get(taken[0].sheetNumber!)!.fileName, taken[0].fileName, taken[0].at);
+}
+
+const describeError = (error: unknown): string => (error instanceof Error ? `${error.message} ${describeError(error.cause)}` : "");
+
+const repeatedSheet = (sheetNumber: number, fileName: string, earlierFile: string, at: Date) =>
+  new AppError(
+    "repeated_sheet_number",
+    `“${fileName}” repeats sheet ${sheetNumber}, already in this press run as “${earlierFile}” (uploaded ${at.toISOString().slice(0, 16).replace("T", " ")} UTC). ` +
+      "A sheet number is unique in a run. Nothing was stored: check the number printed on the sheet and upload again.",
+    409,
+  );
+
 /** Streams one or more scans into storage; a scan already uploaded to this job is recognised and not stored twice. */
 export async function uploadScans(actor: Actor, jobId: number, request: Request): Promise<{ items: ScanUploadItem[] }> {
   const job = await loadJobFor(actor, jobId, "scan.upload");
@@ -80,6 +119,7 @@ export async function uploadScans(actor: Actor, jobId: number, request: Request)
         .select({ id: scans.id, sha256: scans.sha256, sheetNumber: scans.sheetNumber })
         .from(scans)
         .where(and(eq(scans.jobId, job.id), inArray(scans.sha256, upload.files.map((f) => f.sha256))));
+      await refuseRepeatedSheetNumbers(tx, revision.id, upload.files, numbers, known.map((k) => k.sha256));
       const out: ScanUploadItem[] = [];
       const seen = new Map<string, number>();
       for (const [i, file] of upload.files.entries()) {
@@ -113,7 +153,12 @@ export async function uploadScans(actor: Actor, jobId: number, request: Request)
             contentType: file.contentType,
             uploadedBy: actor.id,
           })
-          .$returningId();
+          .$returningId()
+          .catch((error: unknown) => {
+            // Another upload took the number between our check and this insert.
+            if (isDuplicateKey(error) && numbers[i] !== null && /scans_revision_sheet_uq/.test(describeError(error))) throw repeatedSheet(numbers[i]!, file.fileName, "another upload", new Date());
+            throw error;
+          });
         seen.set(file.sha256, scanId);
         const [{ id: inspectionId }] = await tx
           .insert(inspections)

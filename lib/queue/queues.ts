@@ -38,7 +38,8 @@ export const jobIds = {
   rasterise: (revisionId: number, dpi: number) => `raster-${revisionId}-${dpi}`,
   preview: (revisionId: number) => `preview-${revisionId}`,
   inspect: (inspectionId: number) => `inspection-${inspectionId}`,
-  mail: (data: MailData, run: number) => `mail-${data.kind}-${data.inspectionId}-${run}`,
+  // The reason keeps a failed inspection's mail and a failed sign-off's (numbered by the signature) apart.
+  mail: (data: MailData, run: number) => `mail-${data.kind}${"reason" in data ? `-${data.reason}` : ""}-${data.inspectionId}-${run}`,
 };
 
 interface Queues {

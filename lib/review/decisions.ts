@@ -7,6 +7,7 @@ import { findings, inspections, users, type FindingRow } from "@/db/schema";
 import { recordAudit } from "@/lib/audit";
 import type { Actor } from "@/lib/auth/policy";
 import { AppError, notFound } from "@/lib/errors";
+import { refreshRunMemory } from "@/lib/run/memory-store";
 import { loadSheetFor, type SheetRow } from "./load";
 
 export type Decision = "accepted" | "rejected";
@@ -46,6 +47,8 @@ export interface DecideInput {
   decision: Decision;
   reason: DecisionReason;
   comment?: string | null;
+  /** The reviewer confirmed the suggestion of an earlier sheet's accepted finding at the same place. */
+  confirmsPrior?: boolean;
 }
 
 export interface DecisionResult {
@@ -107,7 +110,7 @@ function checkDecision(input: DecideInput): string | null {
 async function changeFinding(
   actor: Actor,
   input: { inspectionId: number; findingId: number; version: number },
-  change: { decision: "pending" | Decision; reason: DecisionReason | null; comment: string | null },
+  change: { decision: "pending" | Decision; reason: DecisionReason | null; comment: string | null; confirmsPrior?: boolean },
   auditAction: string,
 ): Promise<DecisionResult> {
   return db.transaction(async (tx) => {
@@ -125,6 +128,8 @@ async function changeFinding(
       .set({ decision: change.decision, decisionReason: change.reason, comment: change.comment, decidedBy: actor.id, decidedAt, version: finding.version + 1 })
       .where(eq(findings.id, finding.id));
     await tx.update(inspections).set({ version: sql`${inspections.version} + 1` }).where(eq(inspections.id, input.inspectionId));
+    // Later sheets of the run may now be pre-marked "accepted on sheet N" (or no longer, after an undo).
+    await refreshRunMemory(tx, sheet.scan.artworkRevisionId);
     await recordAudit(tx, {
       actorId: actor.id,
       action: auditAction,
@@ -138,6 +143,7 @@ async function changeFinding(
         reason: change.reason,
         comment: change.comment,
         version: finding.version + 1,
+        ...(change.confirmsPrior && finding.priorFindingId ? { confirmsPriorFindingId: finding.priorFindingId } : {}),
       },
     });
     return {
@@ -155,7 +161,7 @@ async function changeFinding(
 /** Accept or reject one finding (policy: finding.decide). */
 export async function decideFinding(actor: Actor, input: DecideInput): Promise<DecisionResult> {
   const comment = checkDecision(input);
-  return changeFinding(actor, input, { decision: input.decision, reason: input.reason, comment }, "finding.decide");
+  return changeFinding(actor, input, { decision: input.decision, reason: input.reason, comment, confirmsPrior: input.confirmsPrior }, "finding.decide");
 }
 
 /** Put a decided finding back to pending; allowed until the sheet is signed (policy: finding.decide). */

@@ -10,6 +10,8 @@ export const decideBody = z.object({
   reason: z.enum(["no_defect", "within_tolerance", "defect"], { error: "Choose a reason." }),
   comment: z.string().max(2000).nullish(),
   version,
+  /** The reviewer confirmed run memory's suggestion ("accepted on sheet N"); kept in the audit trail. */
+  confirmsPrior: z.boolean().optional(),
 });
 
 export const undoBody = z.object({ version });

@@ -19,6 +19,19 @@ export interface SheetFinding extends FindingView {
   decidedBy: string | null;
   decidedAt: string | null;
   version: number;
+  /** How the finding stands in the press run (null until the run memory has looked at it). */
+  recurrence: "isolated" | "repeating" | "every_up" | null;
+  /** Run memory: the accepted finding of an earlier sheet at the same place, for the reviewer to confirm. */
+  prior: PriorFinding | null;
+}
+
+export interface PriorFinding {
+  findingId: number;
+  inspectionId: number;
+  sheetNumber: number | null;
+  reason: DecisionReason | null;
+  comment: string | null;
+  decidedBy: string | null;
 }
 
 export interface SheetView {
@@ -42,6 +55,26 @@ export interface SheetView {
   may: { decide: boolean; signoff: boolean; reopen: boolean };
 }
 
+/** The earlier accepted findings that findings of this sheet point at, with their sheet numbers. */
+async function priorFindings(ids: number[]): Promise<Map<number, PriorFinding>> {
+  if (ids.length === 0) return new Map();
+  const rows = await db
+    .select({ finding: findings, sheetNumber: scans.sheetNumber, decidedBy: users.name })
+    .from(findings)
+    .innerJoin(inspections, eq(inspections.id, findings.inspectionId))
+    .innerJoin(scans, eq(scans.id, inspections.scanId))
+    .leftJoin(users, eq(users.id, findings.decidedBy))
+    .where(inArray(findings.id, [...new Set(ids)]));
+  return new Map(
+    rows
+      .filter((r) => r.finding.decision === "accepted")
+      .map((r) => [
+        r.finding.id,
+        { findingId: r.finding.id, inspectionId: r.finding.inspectionId, sheetNumber: r.sheetNumber, reason: r.finding.decisionReason, comment: r.finding.comment, decidedBy: r.decidedBy },
+      ]),
+  );
+}
+
 const mm = (um: number | null) => (um === null ? null : um / 1000);
 
 export async function getSheetView(actor: Actor, inspectionId: number): Promise<SheetView> {
@@ -52,6 +85,7 @@ export async function getSheetView(actor: Actor, inspectionId: number): Promise<
   const names = new Map(
     deciderIds.length ? (await db.select({ id: users.id, name: users.name }).from(users).where(inArray(users.id, deciderIds))).map((u) => [u.id, u.name]) : [],
   );
+  const priors = await priorFindings(rows.flatMap((f) => (f.priorFindingId ? [f.priorFindingId] : [])));
   const base = `/api/inspections/${i.id}`;
   const sorted = rows.sort((a, b) => b.areaUm2 - a.areaUm2 || a.id - b.id);
   const siblings = await db
@@ -95,6 +129,8 @@ export async function getSheetView(actor: Actor, inspectionId: number): Promise<
       decidedBy: f.decidedBy ? (names.get(f.decidedBy) ?? null) : null,
       decidedAt: f.decidedAt?.toISOString() ?? null,
       version: f.version,
+      recurrence: f.recurrence,
+      prior: f.priorFindingId ? (priors.get(f.priorFindingId) ?? null) : null,
     })),
     signatures: await listSignatures(actor, i.id),
     siblings,

@@ -122,6 +122,12 @@ export async function signSheet(actor: Actor, input: SignInput): Promise<Signatu
   await enqueueMail({ kind: "sheet_signed", inspectionId: input.inspectionId, signoffId: signed.id }, signed.id).catch((error) =>
     console.error(`sign-off ${signed.id}: queueing the e-mail failed`, error),
   );
+  // A failed sheet also tells QA and prepress which stack of sheets to pull from the delivery.
+  if (input.verdict === "failed") {
+    await enqueueMail({ kind: "sheet_failed", inspectionId: input.inspectionId, reason: "verdict_failed" }, signed.id).catch((error) =>
+      console.error(`sign-off ${signed.id}: queueing the span-to-pull e-mail failed`, error),
+    );
+  }
   return toView({ ...signed, reopenedBy: null, reopenedAt: null, reopenReason: null }, signed.recordSha256, new Map());
 }
 

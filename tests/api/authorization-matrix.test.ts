@@ -72,6 +72,12 @@ const ROUTES: RouteCase[] = [
   { file: "app/api/v1/jobs/[jobId]/scans/route.ts", method: "POST", action: "scan.upload", scope: "job", request: (j) => ({ params: jobParams(j), ...emptyMultipart() }) },
   { file: "app/api/v1/jobs/route.ts", method: "GET", action: "job.read", scope: "list", request: () => ({}) },
   { file: "app/api/v1/jobs/route.ts", method: "POST", action: "job.create", scope: "plant", request: (j) => json({ ...validJob(j), jobNumber: `MX-${unique()}` }) },
+  // --- Press run routes (issue 13: traceability, CSV, reports): read like the sheets they are made of ---
+  { file: "app/api/v1/jobs/[jobId]/run/route.ts", method: "GET", action: "inspection.read", scope: "job", request: (j) => ({ params: jobParams(j) }) },
+  { file: "app/api/v1/jobs/[jobId]/run/sheets.csv/route.ts", method: "GET", action: "inspection.read", scope: "job", request: (j) => ({ params: jobParams(j) }) },
+  { file: "app/api/v1/jobs/[jobId]/run/report.pdf/route.ts", method: "GET", action: "inspection.read", scope: "job", request: (j) => ({ params: jobParams(j) }) },
+  { file: "app/api/v1/inspections/[inspectionId]/report.pdf/route.ts", method: "GET", action: "inspection.read", scope: "job", request: (j) => ({ params: inspectionParams(j) }) },
+  // --- end of press run routes ---
 ];
 
 /** Route handlers that answer everybody on purpose, with the reason. */

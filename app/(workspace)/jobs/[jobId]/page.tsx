@@ -24,7 +24,10 @@ export default async function JobPage(props: { params: Promise<{ jobId: string }
           <span className="font-mono text-lg text-ink-muted">{job.jobNumber}</span> {job.title}
         </h1>
         <p className="mt-1 text-sm text-ink-muted">
-          {job.customerName} · compared at {job.artworkDpi} dpi
+          {job.customerName} · compared at {job.artworkDpi} dpi ·{" "}
+          <Link href={`/jobs/${job.id}/run`} className="text-accent hover:underline">
+            Press run: traceability, chart and reports
+          </Link>
         </p>
       </div>
       <JobDetails jobId={job.id} />

@@ -32,6 +32,14 @@ export default async function SheetPage(props: { params: Promise<{ jobId: string
           {view.alignment.rotationDeg !== null && ` · turned ${view.alignment.rotationDeg.toFixed(2)}°, fit ±${(view.alignment.residualMm ?? 0).toFixed(2)} mm`}
           {view.alignment.driftDeltaE00 !== null && ` · overall drift ΔE00 ${view.alignment.driftDeltaE00.toFixed(1)}`}
         </p>
+        <p className="mt-1 flex flex-wrap gap-x-4 gap-y-1 text-sm">
+          <a href={`/api/v1/inspections/${view.inspectionId}/report.pdf`} className="text-accent hover:underline">
+            Sheet report (PDF)
+          </a>
+          <Link href={`/jobs/${view.job.id}/run`} className="text-accent hover:underline">
+            The press run
+          </Link>
+        </p>
       </div>
       <SheetWorkspace initial={view} />
     </div>

@@ -1,0 +1,1 @@
+ALTER TABLE `scans` ADD CONSTRAINT `scans_revision_sheet_uq` UNIQUE(`artwork_revision_id`,`sheet_number`);
