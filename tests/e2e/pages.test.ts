@@ -49,12 +49,12 @@ async function sweep(who: string, email: string | null, paths: string[]): Promis
 
 describe("every page", () => {
   it("an administrator's pages", async () => {
-    const paths = ["/", "/jobs/new", `/jobs/${jobId}`, `/jobs/${jobId}/edit`, `/jobs/${jobId}/audit`, "/customers", "/customers/new", `/customers/${customerId}/edit`, "/admin/users", "/admin/audit", "/settings/tokens", "/api-reference"];
+    const paths = ["/", "/jobs/new", `/jobs/${jobId}`, `/jobs/${jobId}/run`, `/jobs/${jobId}/edit`, `/jobs/${jobId}/audit`, "/customers", "/customers/new", `/customers/${customerId}/edit`, "/admin/users", "/admin/audit", "/settings/tokens", "/api-reference"];
     expect(await sweep("admin", admin.email, paths)).toEqual([]);
   }, 300_000);
 
   it("a customer user's pages", async () => {
-    expect(await sweep("customer", customerUser.email, ["/", `/jobs/${jobId}`, "/settings/tokens"])).toEqual([]);
+    expect(await sweep("customer", customerUser.email, ["/", `/jobs/${jobId}`, `/jobs/${jobId}/run`, "/settings/tokens"])).toEqual([]);
   }, 120_000);
 
   it("the pages before signing in: sign-in and setting a password from an invitation", async () => {
