@@ -25,7 +25,7 @@ export default async function JobPage(props: { params: Promise<{ jobId: string }
         </h1>
         <p className="mt-1 text-sm text-ink-muted">
           {job.customerName} · compared at {job.artworkDpi} dpi ·{" "}
-          <Link href={`/jobs/${job.id}/run`} className="text-accent hover:underline">
+          <Link href={`/jobs/${job.id}/run`} className="text-accent underline">
             Press run: traceability, chart and reports
           </Link>
         </p>

@@ -5,6 +5,7 @@ import { RunChart, type ChartSheet } from "@/components/run/run-chart";
 import { RunTable } from "@/components/run/run-table";
 import { requireActor } from "@/lib/auth/session";
 import { AppError } from "@/lib/errors";
+import { getJob } from "@/lib/jobs/jobs";
 import { getRunView, type RunView } from "@/lib/run/traceability";
 
 export const metadata: Metadata = { title: "Press run" };
@@ -21,8 +22,11 @@ export default async function RunPage(props: { params: Promise<{ jobId: string }
   try {
     run = await getRunView(actor, jobId, revision);
   } catch (error) {
-    if (error instanceof AppError && (error.status === 404 || error.status === 403)) notFound();
-    throw error;
+    if (!(error instanceof AppError && (error.status === 404 || error.status === 403))) throw error;
+    // A job the reader may see but with no approved artwork yet has no press run: say so rather than 404.
+    const job = await getJob(actor, jobId).catch(() => null);
+    if (!job || revision !== undefined) notFound();
+    return <NoRunYet jobId={job.id} jobNumber={job.jobNumber} title={job.title} />;
   }
   const query = `?revision=${run.revision.revision}`;
   const chart: ChartSheet[] = run.sheets.flatMap((s) =>
@@ -112,6 +116,21 @@ export default async function RunPage(props: { params: Promise<{ jobId: string }
         <h2 id="table-heading" className="text-lg font-semibold">Sheets by sheet number</h2>
         {run.sheets.length === 0 ? <p className="text-sm text-ink-muted">No sheets of this run have been scanned yet.</p> : <RunTable jobId={run.job.id} sheets={run.sheets} />}
       </section>
+    </div>
+  );
+}
+
+function NoRunYet({ jobId, jobNumber, title }: { jobId: number; jobNumber: string; title: string }) {
+  return (
+    <div className="space-y-4">
+      <Link href={`/jobs/${jobId}`} className="text-sm text-accent underline">
+        ← <span className="font-mono">{jobNumber}</span> {title}
+      </Link>
+      <h1 className="text-2xl font-semibold tracking-tight">Press run</h1>
+      <p className="rounded-lg border border-rule bg-white p-5 text-sm text-ink-muted">
+        No press run yet. A run starts when an artwork revision of this job is approved; its scanned sheets, their
+        verdicts, the spans to pull and the reports then appear here.
+      </p>
     </div>
   );
 }

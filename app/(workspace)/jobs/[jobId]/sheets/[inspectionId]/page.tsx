@@ -36,7 +36,7 @@ export default async function SheetPage(props: { params: Promise<{ jobId: string
           <a href={`/api/v1/inspections/${view.inspectionId}/report.pdf`} className="text-accent hover:underline">
             Sheet report (PDF)
           </a>
-          <Link href={`/jobs/${view.job.id}/run`} className="text-accent hover:underline">
+          <Link href={`/jobs/${view.job.id}/run`} className="text-accent underline">
             The press run
           </Link>
         </p>
