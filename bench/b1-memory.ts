@@ -5,9 +5,9 @@ import { readFile, writeFile } from "node:fs/promises";
 import sharp from "sharp";
 import { growHeapBeforeMarking } from "../lib/imaging/heap";
 import { inspectSheet } from "../lib/imaging/inspect";
-import { loadScan } from "../lib/imaging/load-scan";
+import { loadScan } from "../lib/imaging/scan/load-scan";
 import { getProfile } from "../lib/imaging/profiles";
-import { rasterisePage } from "../lib/imaging/rasterise";
+import { rasterisePage } from "../lib/imaging/rasterise/rasterise";
 import { makeCartonPdf } from "../tests/support/carton";
 import { applyDefects } from "../tests/support/simulator/defects";
 

@@ -5,7 +5,7 @@ import { execFileSync, spawnSync } from "node:child_process";
 import { writeFileSync } from "node:fs";
 import path from "node:path";
 import sharp from "sharp";
-import { rasterisePage } from "../lib/imaging/rasterise";
+import { rasterisePage } from "../lib/imaging/rasterise/rasterise";
 import { makeCartonPdf, type CartonOptions } from "../tests/support/carton";
 import { applyDefects } from "../tests/support/simulator/defects";
 import { simulateSheet } from "../tests/support/simulator/index";

@@ -1,6 +1,6 @@
 // Benchmark sheets: invented carton artwork (tests/support/carton.ts), simulated scans with planted defects
 // (tests/support/simulator), and the rule that matches findings to the planted truth.
-import { rasterisePage } from "../lib/imaging/rasterise";
+import { rasterisePage } from "../lib/imaging/rasterise/rasterise";
 import type { ArtworkRaster, Finding, RectMm } from "../lib/imaging/types";
 import { makeCartonPdf, type CartonLayout, type CartonOptions } from "../tests/support/carton";
 import { simulateSheet, type SimulatedSheet } from "../tests/support/simulator/index";

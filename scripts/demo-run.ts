@@ -8,7 +8,7 @@ import sharp from "sharp";
 import { closeDb, db } from "../db/client";
 import { artworkRevisions, customers, inspections, jobs, scans, users } from "../db/schema";
 import type { Actor } from "../lib/auth/policy";
-import { rasterisePage } from "../lib/imaging/rasterise";
+import { rasterisePage } from "../lib/imaging/rasterise/rasterise";
 import { approveArtwork, currentApprovedRevision, uploadArtwork } from "../lib/pipeline/artworks";
 import { retryInspection } from "../lib/pipeline/inspections";
 import { countFindings } from "../lib/pipeline/records";

@@ -1,11 +1,11 @@
-// The artwork's prepared side of the comparison (lib/imaging/prepared-store.ts) in the bucket, where any worker
+// The artwork's prepared side of the comparison (lib/imaging/compare/prepared-store.ts) in the bucket, where any worker
 // host finds it: made by the raster job when the artwork is approved, for the likely scanner blur, and by the
 // first sheet of a run whose scanner measures another. A missing, stale or damaged object is prepared again
 // (logged, never fatal), so a bad file costs one sheet's preparation and nothing else.
 import { Readable } from "node:stream";
-import { CACHE_MAX_PIXELS, preparePageRows, type ContrastWindows, type PreparedRect, type PreparedRows } from "@/lib/imaging/prepared";
+import { CACHE_MAX_PIXELS, preparePageRows, type ContrastWindows, type PreparedRect, type PreparedRows } from "@/lib/imaging/compare/prepared";
 import type { PreparedSupply } from "@/lib/imaging/inspect";
-import { openPrepared, preparationHalo, PreparedUnusable, preparePageParts, serialisePreparedParts } from "@/lib/imaging/prepared-store";
+import { openPrepared, preparationHalo, PreparedUnusable, preparePageParts, serialisePreparedParts } from "@/lib/imaging/compare/prepared-store";
 import type { RgbaImage } from "@/lib/imaging/types";
 import { keys } from "@/storage/keys";
 import { deleteObject, getObjectBuffer, getObjectRange, objectSize, putObject } from "@/storage/objects";

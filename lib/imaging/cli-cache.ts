@@ -10,8 +10,8 @@ import path from "node:path";
 import { Readable } from "node:stream";
 import { pipeline } from "node:stream/promises";
 import type { PreparedSupply } from "./inspect";
-import { CACHE_MAX_PIXELS, type ContrastWindows, type PreparedRows } from "./prepared";
-import { openPrepared, preparePageParts, serialisePreparedParts, type PreparedExpectation } from "./prepared-store";
+import { CACHE_MAX_PIXELS, type ContrastWindows, type PreparedRows } from "./compare/prepared";
+import { openPrepared, preparePageParts, serialisePreparedParts, type PreparedExpectation } from "./compare/prepared-store";
 import type { ArtworkRaster } from "./types";
 
 export function defaultCacheDir(): string {

@@ -4,14 +4,14 @@ import { readFile, rename, rm, writeFile } from "node:fs/promises";
 import path from "node:path";
 import { parseArgs } from "node:util";
 import sharp from "sharp";
-import { alignScan } from "./align";
+import { alignScan } from "./align/align";
 import { defaultCacheDir, fileSupply } from "./cli-cache";
 import { identityAlignment, inspectSheet, likelyScannerBlurPx } from "./inspect";
-import { loadScan } from "./load-scan";
-import { loadOpenCv } from "./opencv";
+import { loadScan } from "./scan/load-scan";
+import { loadOpenCv } from "./align/opencv";
 import { getProfile } from "./profiles";
-import { MIN_DPI, rasterisePage, readPdfPages } from "./rasterise";
-import { estimateScanDpi, measuredDpi } from "./scan-dpi";
+import { MIN_DPI, rasterisePage, readPdfPages } from "./rasterise/rasterise";
+import { estimateScanDpi, measuredDpi } from "./scan/scan-dpi";
 import { ImagingError, type Alignment, type ArtworkRaster, type Finding, type InspectionResult, type RectMm, type UpsLayout } from "./types";
 
 /** Highest resolution compared at unless --artwork-dpi asks (see comparisonDpi). */

@@ -1,14 +1,14 @@
 // The inspection of one press sheet: align → normalise → compare → findings. The CLI and the worker call
 // exactly this. Pure: typed arrays in, plain objects out; safe inside worker threads (nothing is shared between
 // threads: each keeps its own prepared artwork and band buffers).
-import { alignScan } from "./align";
-import { alignedScanSource, borrowScratch, haloPx, processRect, returnScratch, type SheetContext } from "./bands";
-import { makeCrops } from "./crops";
-import { measureAllowances } from "./allowances";
-import { RegionCollector, regionsToFindings } from "./findings";
-import { fitNormalisation, lowPassSigmaPx } from "./normalise";
-import { estimateOpticalBlur, OPTICAL_BLUR_STEPS_PX, suggestBlurStep } from "./optics";
-import { CACHE_MAX_PIXELS, preparedPageIfKept, adoptPrepared, type ContrastWindows, type PreparedRect, type PreparedRows } from "./prepared";
+import { alignScan } from "./align/align";
+import { alignedScanSource, borrowScratch, haloPx, processRect, returnScratch, type SheetContext } from "./compare/bands";
+import { makeCrops } from "./findings/crops";
+import { measureAllowances } from "./compare/allowances";
+import { RegionCollector, regionsToFindings } from "./findings/findings";
+import { fitNormalisation, lowPassSigmaPx } from "./colour/normalise";
+import { estimateOpticalBlur, OPTICAL_BLUR_STEPS_PX, suggestBlurStep } from "./colour/optics";
+import { CACHE_MAX_PIXELS, preparedPageIfKept, adoptPrepared, type ContrastWindows, type PreparedRect, type PreparedRows } from "./compare/prepared";
 import { validateProfile } from "./profiles";
 import { mmToPx, pxRectToMm, rectMmToPx, rectMmToPxInside, type PxRect } from "./raster";
 import {

@@ -1,4 +1,4 @@
-// Pixel-grid helpers shared by the stages: rectangles in pixels, mm ↔ px, the artwork → scan affine map.
+// Pixel-grid helpers shared by the stages: rectangles in pixels and mm ↔ px.
 import type { RectMm } from "./types";
 
 /** A rectangle of whole pixels: columns x … x + w − 1, rows y … y + h − 1. */
@@ -8,9 +8,6 @@ export interface PxRect {
   w: number;
   h: number;
 }
-
-/** [a, b, c, d, e, f]: xs = a·x + b·y + c, ys = d·x + e·y + f. */
-export type AffineMap = readonly [number, number, number, number, number, number];
 
 export function mmToPx(mm: number, dpi: number): number {
   return (mm * dpi) / 25.4;

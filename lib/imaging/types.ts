@@ -3,6 +3,9 @@
 // px = mm × dpi / 25.4.
 
 /** An 8-bit RGBA image, rows top to bottom, 4 bytes a pixel. */
+/** The engine's one 2 × 3 affine, [a, b, c, d, e, f]: x' = a·x + b·y + c, y' = d·x + e·y + f (artwork → scan and every map composed from it). */
+export type Affine = readonly [number, number, number, number, number, number];
+
 export interface RgbaImage {
   width: number;
   height: number;
@@ -57,7 +60,7 @@ export interface Alignment {
   /** Share (0–1, score-weighted) of the fine registration patches that matched where the fit says. */
   patchAgreement?: number;
   /** Affine map from artwork px to scan px: [a, b, c, d, e, f] with xs = a·x + b·y + c, ys = d·x + e·y + f. */
-  artworkToScan: [number, number, number, number, number, number];
+  artworkToScan: Affine;
   /** Part of the artwork page the scan covers, in mm (bounding box; the warp's mask is exact). */
   coveredMm: RectMm;
   /** Local displacements for paper stretch on top of artworkToScan (optional local refinement). */

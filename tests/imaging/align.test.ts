@@ -3,12 +3,12 @@
 // scale, ≤ 0.1 mm at the sheet's centre and corners (of the covered area when the scan sees part of the sheet).
 // The artwork is the invented multi-up carton sheet of tests/support/carton.ts, rasterised at 100 dpi.
 import { beforeAll, describe, expect, it } from "vitest";
-import { alignScan, warpScanToArtwork } from "@/lib/imaging/align";
-import { WarpBuffers } from "@/lib/imaging/align-warp";
-import { apply, coveredRect } from "@/lib/imaging/align-affine";
+import { alignScan, warpScanToArtwork } from "@/lib/imaging/align/align";
+import { WarpBuffers } from "@/lib/imaging/align/warp";
+import { apply, coveredRect } from "@/lib/imaging/align/affine";
 import { pxRectToMm } from "@/lib/imaging/raster";
-import { loadOpenCv } from "@/lib/imaging/opencv";
-import { rasterisePage } from "@/lib/imaging/rasterise";
+import { loadOpenCv } from "@/lib/imaging/align/opencv";
+import { rasterisePage } from "@/lib/imaging/rasterise/rasterise";
 import { ImagingError, type Alignment, type ArtworkRaster, type RectMm, type ScanImage } from "@/lib/imaging/types";
 import { makeCartonPdf } from "@/tests/support/carton";
 import { applyPress, applyScanner } from "@/tests/support/simulator/photometric";

@@ -1,8 +1,8 @@
-// The sheet's allowances from a sample of its pixels (lib/imaging/allowances.ts): on edges, the level that all
+// The sheet's allowances from a sample of its pixels (lib/imaging/compare/allowances.ts): on edges, the level that all
 // but one in ten thousand of them need no more than, kept between the default and the most forgiven.
 import { describe, expect, it } from "vitest";
-import { EDGE_ALLOWANCE, EDGE_SAMPLE_STEPS, FLAT_SAMPLE_STEPS, newSheetSample, type SheetSample } from "@/lib/imaging/compare";
-import { edgeAllowanceFrom as allowanceFrom, flatAllowanceFrom } from "@/lib/imaging/allowances";
+import { EDGE_ALLOWANCE, EDGE_SAMPLE_STEPS, FLAT_SAMPLE_STEPS, newSheetSample, type SheetSample } from "@/lib/imaging/compare/compare";
+import { edgeAllowanceFrom as allowanceFrom, flatAllowanceFrom } from "@/lib/imaging/compare/allowances";
 
 function sample(edgePixels: number, needs: [number, number][]): SheetSample {
   const s = newSheetSample();

@@ -1,6 +1,6 @@
 // The per-artwork cache of artwork-only results (prepared page, sampling grid, scanner-blur trials).
 import { describe, expect, it } from "vitest";
-import { ArtworkCache } from "@/lib/imaging/artwork-cache";
+import { ArtworkCache } from "@/lib/imaging/compare/artwork-cache";
 
 const page = (data: Uint8Array, width: number, height: number) => ({ data, width, height });
 

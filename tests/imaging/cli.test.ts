@@ -4,7 +4,7 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import sharp from "sharp";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { rasterisePage } from "@/lib/imaging/rasterise";
+import { rasterisePage } from "@/lib/imaging/rasterise/rasterise";
 import { makeCartonPdf } from "../support/carton";
 import { simulateSheet } from "../support/simulator/index";
 

@@ -14,7 +14,7 @@ import {
   srgbToLinear,
   linearToSrgb,
   SRGB8_TO_LINEAR,
-} from "@/lib/imaging/colour";
+} from "@/lib/imaging/colour/colour";
 
 // Kept in the repository so a clean clone tests on its own (the published table, unchanged).
 const SHARMA = path.resolve(import.meta.dirname, "../reference/ciede2000-sharma-2005.csv");

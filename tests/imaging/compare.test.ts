@@ -2,10 +2,10 @@
 // sRGB → CIELAB (D65); ΔE00 itself is checked against Sharma, Wu & Dalal (2005) in colour.test.ts.
 import Color from "colorjs.io";
 import { describe, expect, it } from "vitest";
-import { deltaE00 } from "@/lib/imaging/colour";
-import { compareBand, CompareScratch, PIXEL_COLOUR_SHIFT, PIXEL_EXTRA_INK, PIXEL_MISSING_INK, type BandPair } from "@/lib/imaging/compare";
-import { lowPass } from "@/lib/imaging/normalise";
-import { prepareLowPassed } from "@/lib/imaging/prepared";
+import { deltaE00 } from "@/lib/imaging/colour/colour";
+import { compareBand, CompareScratch, PIXEL_COLOUR_SHIFT, PIXEL_EXTRA_INK, PIXEL_MISSING_INK, type BandPair } from "@/lib/imaging/compare/compare";
+import { lowPass } from "@/lib/imaging/colour/normalise";
+import { prepareLowPassed } from "@/lib/imaging/compare/prepared";
 
 const W = 40, H = 30;
 

@@ -1,7 +1,7 @@
 // Labelling and findings on hand-made difference bands (expected values worked out by hand).
 import { describe, expect, it } from "vitest";
-import { PIXEL_COLOUR_SHIFT, PIXEL_EXTRA_INK, PIXEL_MISSING_INK, type BandDifference } from "@/lib/imaging/compare";
-import { RegionCollector, regionsToFindings, upOf } from "@/lib/imaging/findings";
+import { PIXEL_COLOUR_SHIFT, PIXEL_EXTRA_INK, PIXEL_MISSING_INK, type BandDifference } from "@/lib/imaging/compare/compare";
+import { RegionCollector, regionsToFindings, upOf } from "@/lib/imaging/findings/findings";
 
 function band(width: number, rows: string[], kind = PIXEL_EXTRA_INK, e = 10): BandDifference {
   const deltaE = new Float32Array(width * rows.length);

@@ -6,7 +6,7 @@ import { beforeAll, describe, expect, it } from "vitest";
 import { PNG } from "pngjs";
 import { inspectSheet, identityAlignment } from "@/lib/imaging/inspect";
 import { getProfile } from "@/lib/imaging/profiles";
-import { rasterisePage } from "@/lib/imaging/rasterise";
+import { rasterisePage } from "@/lib/imaging/rasterise/rasterise";
 import { ImagingError, type ArtworkRaster, type Finding, type InspectionProgress, type RectMm } from "@/lib/imaging/types";
 import { makeCartonPdf, type CartonLayout } from "@/tests/support/carton";
 import type { DefectSpec } from "@/tests/support/simulator/defects";

@@ -3,10 +3,10 @@
 // against the gain that made the samples (known here) and against sRGB's transfer function (IEC 61966-2-1,
 // as colour.ts implements it: a pixel divided by its gain in linear light comes back to the artwork).
 import { describe, expect, it } from "vitest";
-import { linearToSrgb255Fast, SRGB8_TO_LINEAR } from "@/lib/imaging/colour";
-import { identityModel } from "@/lib/imaging/colour-model";
-import { fitLightField, removeLightField } from "@/lib/imaging/light-field";
-import type { SamplePairs } from "@/lib/imaging/samples";
+import { linearToSrgb255Fast, SRGB8_TO_LINEAR } from "@/lib/imaging/colour/colour";
+import { identityModel } from "@/lib/imaging/colour/colour-model";
+import { fitLightField, removeLightField } from "@/lib/imaging/colour/light-field";
+import type { SamplePairs } from "@/lib/imaging/colour/samples";
 
 const W = 2000, H = 1400;
 const gain = (x: number, y: number) => {

@@ -2,9 +2,9 @@ import { crc32, deflateSync } from "node:zlib";
 import Color from "colorjs.io";
 import sharp from "sharp";
 import { describe, expect, it } from "vitest";
-import { deltaE00, rgbToXyzMatrix, srgb8ToLab } from "@/lib/imaging/colour";
-import { parseIccProfile } from "@/lib/imaging/icc";
-import { loadScan } from "@/lib/imaging/load-scan";
+import { deltaE00, rgbToXyzMatrix, srgb8ToLab } from "@/lib/imaging/colour/colour";
+import { parseIccProfile } from "@/lib/imaging/scan/icc";
+import { loadScan } from "@/lib/imaging/scan/load-scan";
 import { ImagingError } from "@/lib/imaging/types";
 
 // Test colours (8-bit sRGB): primaries, greys, skin tones and saturated print colours.

@@ -1,10 +1,10 @@
 // Normalisation: the low-pass and the sheet's colour fit. External references: IEC 61966-2-1 (sRGB transfer
 // curve: linear 0.5 encodes to 0.7354) and colorjs.io for CIELAB (D65) of the artwork colours.
 import { beforeAll, describe, expect, it } from "vitest";
-import { deltaE00, srgb8ToLab } from "@/lib/imaging/colour";
-import { evaluateModel, identityModel, mapColours } from "@/lib/imaging/colour-model";
-import { fitNormalisation, lowPass, lowPassSigmaPx } from "@/lib/imaging/normalise";
-import { rasterisePage } from "@/lib/imaging/rasterise";
+import { deltaE00, srgb8ToLab } from "@/lib/imaging/colour/colour";
+import { evaluateModel, identityModel, mapColours } from "@/lib/imaging/colour/colour-model";
+import { fitNormalisation, lowPass, lowPassSigmaPx } from "@/lib/imaging/colour/normalise";
+import { rasterisePage } from "@/lib/imaging/rasterise/rasterise";
 import type { ArtworkRaster } from "@/lib/imaging/types";
 import { makeCartonPdf, PATCHES, type CartonLayout } from "@/tests/support/carton";
 import { simulateSheet } from "@/tests/support/simulator/index";

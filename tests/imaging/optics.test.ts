@@ -1,9 +1,9 @@
 // The scanner's blur measured per sheet. The kernel's variance is σ² by construction ([a, 1 − 2a, a] with
 // a = σ²/2 has variance 2a); a scan made by blurring the artwork with a known σ must be measured back.
 import { beforeAll, describe, expect, it } from "vitest";
-import { identityModel } from "@/lib/imaging/colour-model";
-import { estimateOpticalBlur, OPTICAL_BLUR_STEPS_PX, opticalBlur, opticalKernel } from "@/lib/imaging/optics";
-import { rasterisePage } from "@/lib/imaging/rasterise";
+import { identityModel } from "@/lib/imaging/colour/colour-model";
+import { estimateOpticalBlur, OPTICAL_BLUR_STEPS_PX, opticalBlur, opticalKernel } from "@/lib/imaging/colour/optics";
+import { rasterisePage } from "@/lib/imaging/rasterise/rasterise";
 import type { ArtworkRaster } from "@/lib/imaging/types";
 import { makeCartonPdf } from "@/tests/support/carton";
 

@@ -1,4 +1,4 @@
-// The stored form of the prepared artwork (lib/imaging/prepared-store.ts): a sheet compared against a loaded
+// The stored form of the prepared artwork (lib/imaging/compare/prepared-store.ts): a sheet compared against a loaded
 // preparation gives exactly the findings of one compared against a fresh preparation, whole or read band by
 // band; a stored object that is damaged, of another version or size, or for other windows is refused. The
 // CRC-32 that finds damaged chunks is the one of ISO 3309 / ITU-T V.42 (node:zlib's crc32, checked here against
@@ -6,10 +6,10 @@
 import { crc32 } from "node:zlib";
 import { beforeAll, describe, expect, it } from "vitest";
 import { inspectSheet, type PreparedSupply } from "@/lib/imaging/inspect";
-import { type ContrastWindows, type PreparedRect } from "@/lib/imaging/prepared";
-import { deserialisePrepared, openPrepared, PreparedUnusable, PREPARATION_VERSION, serialisePrepared } from "@/lib/imaging/prepared-store";
+import { type ContrastWindows, type PreparedRect } from "@/lib/imaging/compare/prepared";
+import { deserialisePrepared, openPrepared, PreparedUnusable, PREPARATION_VERSION, serialisePrepared } from "@/lib/imaging/compare/prepared-store";
 import { getProfile } from "@/lib/imaging/profiles";
-import { rasterisePage } from "@/lib/imaging/rasterise";
+import { rasterisePage } from "@/lib/imaging/rasterise/rasterise";
 import type { ArtworkRaster, InspectionResult, ScanImage } from "@/lib/imaging/types";
 import { makeCartonPdf } from "@/tests/support/carton";
 import { simulateSheet } from "@/tests/support/simulator/index";

@@ -1,8 +1,8 @@
 // The artwork side prepared once per artwork: its local contrast against a direct computation on the same data,
 // and the cache handing back the same preparation for every sheet of a run.
 import { describe, expect, it } from "vitest";
-import { rgbaToLab } from "@/lib/imaging/colour";
-import { BLEED_PX, preparedRect, prepareLowPassed } from "@/lib/imaging/prepared";
+import { rgbaToLab } from "@/lib/imaging/colour/colour";
+import { BLEED_PX, preparedRect, prepareLowPassed } from "@/lib/imaging/compare/prepared";
 
 const W = 57, H = 41;
 

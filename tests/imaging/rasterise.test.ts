@@ -1,6 +1,6 @@
 import { PDFDocument, PDFHexString, PDFName, PDFNumber, rgb } from "pdf-lib";
 import { describe, expect, it } from "vitest";
-import { artworkAtDpi, rasterisePage, readPdfPages } from "@/lib/imaging/rasterise";
+import { artworkAtDpi, rasterisePage, readPdfPages } from "@/lib/imaging/rasterise/rasterise";
 import { ImagingError, type RgbaImage } from "@/lib/imaging/types";
 import { makeCartonPdf, PT_PER_MM } from "../support/carton";
 

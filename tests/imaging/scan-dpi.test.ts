@@ -1,8 +1,8 @@
-// The scan's resolution estimated from its size against the page's (lib/imaging/scan-dpi.ts). Page sizes: ISO 216
+// The scan's resolution estimated from its size against the page's (lib/imaging/scan/scan-dpi.ts). Page sizes: ISO 216
 // (A4 210 × 297 mm, B2 500 × 707 mm, B1 707 × 1000 mm); the resolutions are those flatbed scanners offer (common
 // practice, no published source).
 import { describe, expect, it } from "vitest";
-import { estimateScanDpi, measuredDpi } from "@/lib/imaging/scan-dpi";
+import { estimateScanDpi, measuredDpi } from "@/lib/imaging/scan/scan-dpi";
 
 const px = (mm: number, dpi: number) => Math.round((mm * dpi) / 25.4);
 

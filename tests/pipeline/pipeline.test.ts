@@ -8,7 +8,7 @@ import { PDFDocument } from "pdf-lib";
 import { db } from "@/db/client";
 import { artworkRevisions, findings, inspections, jobs, scans } from "@/db/schema";
 import type { Actor } from "@/lib/auth/policy";
-import { deserialisePrepared } from "@/lib/imaging/prepared-store";
+import { deserialisePrepared } from "@/lib/imaging/compare/prepared-store";
 import { ensureBucket, getObjectBuffer, listKeys } from "@/storage/objects";
 import { cartonArtwork, perfectScanPng } from "./support/artwork";
 import { makeFixture, multipart, until, type Fixture } from "./support/fixtures";

@@ -5,9 +5,9 @@
 import "./support/test-env";
 import { beforeAll, describe, expect, it } from "vitest";
 import { contrastWindows } from "@/lib/imaging/inspect";
-import { preparePageRows, type PreparedRect, type PreparedRows } from "@/lib/imaging/prepared";
-import { preparationHalo, serialisePrepared } from "@/lib/imaging/prepared-store";
-import { rasterisePage } from "@/lib/imaging/rasterise";
+import { preparePageRows, type PreparedRect, type PreparedRows } from "@/lib/imaging/compare/prepared";
+import { preparationHalo, serialisePrepared } from "@/lib/imaging/compare/prepared-store";
+import { rasterisePage } from "@/lib/imaging/rasterise/rasterise";
 import type { ArtworkRaster } from "@/lib/imaging/types";
 import { newObjectId } from "@/storage/keys";
 import { ensureBucket, getObjectBuffer, objectExists, putObject } from "@/storage/objects";

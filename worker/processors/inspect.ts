@@ -5,8 +5,8 @@ import { DelayedError, UnrecoverableError, type SandboxedJob } from "bullmq";
 import sharp from "sharp";
 import { env } from "@/lib/env";
 import { inspectSheet, likelyScannerBlurPx } from "@/lib/imaging/inspect";
-import { loadScan } from "@/lib/imaging/load-scan";
-import { artworkAtDpi } from "@/lib/imaging/rasterise";
+import { loadScan } from "@/lib/imaging/scan/load-scan";
+import { artworkAtDpi } from "@/lib/imaging/rasterise/rasterise";
 import { ImagingError, type ArtworkRaster, type InspectionProgress } from "@/lib/imaging/types";
 import {
   failInspection,
@@ -34,7 +34,7 @@ sharp.concurrency(1);
 
 /**
  * The last artwork this thread inspected against, kept decoded: the engine prepares the artwork side once per
- * raster buffer (lib/imaging/prepared.ts), and the sheets of a press run come one after another with the same
+ * raster buffer (lib/imaging/compare/prepared.ts), and the sheets of a press run come one after another with the same
  * approved revision. One is kept, so memory stays at one artwork per thread.
  */
 let lastArtwork: { key: string; artwork: ArtworkRaster } | null = null;

@@ -5,7 +5,7 @@ import { UnrecoverableError, type SandboxedJob } from "bullmq";
 import sharp from "sharp";
 import { contrastWindows, likelyScannerBlurPx } from "@/lib/imaging/inspect";
 import { getProfile } from "@/lib/imaging/profiles";
-import { MIN_DPI, rasterisePage } from "@/lib/imaging/rasterise";
+import { MIN_DPI, rasterisePage } from "@/lib/imaging/rasterise/rasterise";
 import { ImagingError, type RgbaImage } from "@/lib/imaging/types";
 import { failRaster, likelyRegistrationToleranceMm, loadRevisionWork, savePageSize, savePrepared, saveRaster } from "@/lib/pipeline/records";
 import type { RasteriseData } from "@/lib/queue/queues";

@@ -8,7 +8,7 @@ import { mkdtemp, readdir, readFile, rm } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import sharp from "sharp";
-import { warpScanToArtwork } from "@/lib/imaging/align";
+import { warpScanToArtwork } from "@/lib/imaging/align/align";
 import type { Alignment, ArtworkRaster, RgbaImage } from "@/lib/imaging/types";
 import { failTiles, markTilesPending, saveTiles, TILE_FORMAT, type TileLayer } from "@/lib/review/tiles";
 import { keys, newObjectId } from "@/storage/keys";

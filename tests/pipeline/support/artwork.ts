@@ -1,7 +1,7 @@
 // The invented carton artwork and simulated scans of it, shared by the pipeline tests and the demo run.
 import sharp from "sharp";
 import { makeCartonPdf } from "@/tests/support/carton";
-import { rasterisePage } from "@/lib/imaging/rasterise";
+import { rasterisePage } from "@/lib/imaging/rasterise/rasterise";
 
 export async function cartonArtwork(opts: Parameters<typeof makeCartonPdf>[0] = {}) {
   return makeCartonPdf({ widthMm: 210, heightMm: 148, rows: 1, columns: 2, ...opts });

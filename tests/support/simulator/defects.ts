@@ -2,7 +2,7 @@
 // scanned: dots of dark ink (a felt-tip mark of 0.3–2 mm on one sheet of a long run must be found — common
 // practice, no published source), voids (hickeys: paper showing through a solid), scratches (a thin light line
 // across a solid) and a colour-shifted patch. The changed word comes from rendering a second artwork PDF.
-import { D65_WHITE, linearToSrgb, srgb8ToLab } from "@/lib/imaging/colour";
+import { D65_WHITE, linearToSrgb, srgb8ToLab } from "@/lib/imaging/colour/colour";
 import type { FindingKind, RectMm, RgbaImage } from "@/lib/imaging/types";
 
 export type DefectSpec =

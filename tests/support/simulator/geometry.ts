@@ -6,7 +6,7 @@
 // convolution interpolation for digital image processing", IEEE Trans. ASSP 29(6), 1981, a = −0.5; cited
 // from memory).
 // Pixel centres sit at integer coordinates; the page spans −0.5 … width − 0.5.
-import { invert, type Affine } from "@/lib/imaging/align-affine";
+import { invert, type Affine } from "@/lib/imaging/align/affine";
 import type { ArtworkRaster, ScanImage } from "@/lib/imaging/types";
 
 export interface GlassOptions {

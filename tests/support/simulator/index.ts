@@ -1,7 +1,7 @@
 // A simulated press sheet scan with ground truth: printed sheet (the artwork, or a second rendering with a
 // changed word) → planted defects → press photometry → placement on the scanner → scanner photometry.
 // Deterministic for a given seed.
-import type { Affine } from "@/lib/imaging/align-affine";
+import type { Affine } from "@/lib/imaging/align/affine";
 import type { ArtworkRaster, RgbaImage, ScanImage } from "@/lib/imaging/types";
 import { applyDefects, type DefectSpec, type DefectTruth } from "./defects";
 import { placeOnGlass, type GlassOptions } from "./geometry";

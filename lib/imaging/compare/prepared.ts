@@ -7,11 +7,11 @@
 // (a B1 sheet at 300 dpi is ~98 megapixels) are prepared band by band for each sheet instead, so memory stays
 // bounded. Never shared between threads.
 import { ArtworkCache } from "./artwork-cache";
-import { rgbaToLab } from "./colour";
-import { lowPass } from "./normalise";
-import { opticalBlur } from "./optics";
-import { cropRgba, type PxRect } from "./raster";
-import type { RgbaImage } from "./types";
+import { rgbaToLab } from "../colour/colour";
+import { lowPass } from "../colour/normalise";
+import { opticalBlur } from "../colour/optics";
+import { cropRgba, type PxRect } from "../raster";
+import type { RgbaImage } from "../types";
 
 /**
  * How the artwork is prepared: the scanner's blur (optics.ts) and the low-pass, then the windows of the local

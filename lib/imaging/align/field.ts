@@ -6,10 +6,10 @@
 // Gaussian-weighted local linear fit of the sites around them: paper stretch is smooth, and the first-order
 // fit carries the trend out to the edge of the measured area instead of pulling edge nodes towards the middle.
 // Neighbours are looked up by cell, so the cost grows with the number of cells, not its square.
-import { apply, fitAffine, type Affine } from "./align-affine";
-import { chooseSites, measure, MAX_RADIUS, type FineArtwork, type Image, type Measure, type Rect } from "./align-patches";
+import { apply, fitAffine, type Affine } from "./affine";
+import { chooseSites, measure, MAX_RADIUS, type FineArtwork, type Image, type Measure, type Rect } from "./patches";
 import type { OpenCv } from "./opencv";
-import type { DisplacementField } from "./types";
+import type { DisplacementField } from "../types";
 
 const FIELD_CELL_MM = 25;
 /** A local offset this far from its neighbours' median is not paper stretch. */

@@ -1,7 +1,9 @@
 // 2-D affine maps as [a, b, c, d, e, f]: x' = a·x + b·y + c, y' = d·x + e·y + f (the layout of
 // Alignment.artworkToScan and of OpenCV's 2 × 3 matrices). Pixel centres sit at integer coordinates.
 
-export type Affine = [number, number, number, number, number, number];
+import type { Affine } from "../types";
+
+export type { Affine };
 
 /** p ↦ m(n(p)). */
 export function compose(m: Affine, n: Affine): Affine {

@@ -1,8 +1,8 @@
 // The scan resampled into the artwork's pixel grid (bilinear), one rectangle at a time: a B1 sheet at 300 dpi
 // is ~98 megapixels, so callers work in tiles and nothing full-size beyond the 8-bit result is allocated.
 // Plain JavaScript on purpose: OpenCV's warp would first need the whole scan copied into its 1 GB heap.
-import type { Affine } from "./align-affine";
-import type { Alignment, DisplacementField, RgbaImage } from "./types";
+import type { Affine } from "./affine";
+import type { Alignment, DisplacementField, RgbaImage } from "../types";
 
 export interface PxRegion {
   x: number;

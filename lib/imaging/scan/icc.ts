@@ -4,7 +4,7 @@
 // Why our own: sharp 0.35.5 returns the stored values of a 16-bit TIFF with a non-sRGB profile in raw output
 // (tests/imaging/load-scan.test.ts shows it), so a wide-gamut scan would look shifted everywhere. Conversion is
 // relative colorimetric with clipping: profile → PCS XYZ (D50) → Bradford to D65 → linear sRGB → sRGB curve.
-import { D65_WHITE, linearToSrgb, SRGB_TO_XYZ } from "./colour";
+import { D65_WHITE, linearToSrgb, SRGB_TO_XYZ } from "../colour/colour";
 
 /** ICC PCS illuminant D50 (ICC.1:2010, 7.2.16), as stored in profiles (s15Fixed16 rounding). */
 export const PCS_D50: readonly [number, number, number] = [0.9642, 1, 0.8249];

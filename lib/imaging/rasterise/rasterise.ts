@@ -9,7 +9,7 @@ import path from "node:path";
 import { PDFArray, PDFDocument, PDFName, PDFNumber } from "pdf-lib";
 import type { PDFDocumentProxy } from "pdfjs-dist/types/src/display/api";
 import sharp from "sharp";
-import { ImagingError, type ArtworkRaster } from "./types";
+import { ImagingError, type ArtworkRaster } from "../types";
 
 export const MIN_DPI = 72;
 export const MAX_DPI = 600;

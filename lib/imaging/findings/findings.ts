@@ -2,9 +2,9 @@
 // row) so that bands of any height join up without a full-size label image; then the second level of the
 // two-level flagging (a region stays only if its peak reaches the profile's ΔE00), merging of nearby blobs,
 // the minimum area, and the up each region lies in.
-import { PIXEL_COLOUR_SHIFT, PIXEL_EXTRA_INK, PIXEL_MISSING_INK, PIXEL_ON_LINEWORK, type BandDifference } from "./compare";
-import { pxToMm } from "./raster";
-import type { Finding, FindingKind, RectMm, UpsLayout } from "./types";
+import { PIXEL_COLOUR_SHIFT, PIXEL_EXTRA_INK, PIXEL_MISSING_INK, PIXEL_ON_LINEWORK, type BandDifference } from "../compare/compare";
+import { pxToMm } from "../raster";
+import type { Finding, FindingKind, RectMm, UpsLayout } from "../types";
 
 /** A connected region in artwork pixels; x1, y1 exclusive. */
 export interface Region {

@@ -3,8 +3,8 @@
 // level pixel (i, j) is centred on full pixel (k·i + (k−1)/2, k·j + (k−1)/2). Integer factors keep that map
 // exact; the registration absorbs any remaining resolution ratio in its scale. Done in plain JavaScript in
 // one pass over rows so that a 100-megapixel sheet never has to be copied whole into the OpenCV heap.
-import type { Affine } from "./align-affine";
-import type { RgbaImage } from "./types";
+import type { Affine } from "./affine";
+import type { RgbaImage } from "../types";
 
 export interface GreyLevel {
   width: number;

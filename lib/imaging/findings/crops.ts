@@ -2,9 +2,9 @@
 // difference picture (artwork faded to grey, tolerant ΔE00 painted red from the pixel level up to twice the
 // profile threshold), all over the same rectangle of the artwork page.
 import { PNG } from "pngjs";
-import { processRect, type SheetContext } from "./bands";
-import { cropRgba, intersect, mmToPx, rgbToRgba, type PxRect } from "./raster";
-import type { Finding } from "./types";
+import { processRect, type SheetContext } from "../compare/bands";
+import { cropRgba, intersect, mmToPx, rgbToRgba, type PxRect } from "../raster";
+import type { Finding } from "../types";
 
 /** Longest side of a crop in pixels; larger areas are cut around the finding's centre. */
 const MAX_CROP_PX = 512;

@@ -7,7 +7,7 @@
 // Resolution: the caller's value wins when given (a scanner may write a wrong one), else the file's, else error.
 import sharp, { type Metadata } from "sharp";
 import { convertToSrgb, isSrgbLike, parseIccProfile } from "./icc";
-import { ImagingError, type ScanImage } from "./types";
+import { ImagingError, type ScanImage } from "../types";
 
 /** Largest scan decoded by default: a B1 sheet at 300 dpi is 98.6 megapixels. */
 export const DEFAULT_MAX_SCAN_MEGAPIXELS = 150;

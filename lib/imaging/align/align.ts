@@ -1,6 +1,6 @@
 // ALIGN: register a scan of a press sheet to its artwork raster, coarse to fine.
 //
-//  1. coarse placement (align-coarse.ts): whole-page correlation over the four quarter turns × ±6° (recovers
+//  1. coarse placement (coarse.ts): whole-page correlation over the four quarter turns × ±6° (recovers
 //     ±7°), swept on ~1 000-pixel grey levels and placed on ~4 000-pixel ones — robust to repeated ups, where
 //     feature matching locks an up off;
 //  2. affine ECC (OpenCV findTransformECC; G. D. Evangelidis & E. Z. Psarakis, "Parametric image alignment
@@ -8,23 +8,23 @@
 //     that level and on one twice as fine. ECC is exact sub-pixel and its correlation refuses a plainly wrong artwork, but costs ~80 ns per
 //     pixel and iteration in the WebAssembly build (1.3 s on 1000 × 1000), so it only runs on ~4 000- and
 //     ~16 000-pixel levels, cut to the part of the page the scan covers;
-//  3. patches at the comparison resolution (align-patches.ts): small windows spread over the covered area,
+//  3. patches at the comparison resolution (patches.ts): small windows spread over the covered area,
 //     each located to a fraction of a pixel, and a robust affine fit through them. This is where the last
 //     tenth of a millimetre comes from, at a few per cent of the cost of a full-resolution ECC;
 //  4. optionally a grid of local displacements on top of the affine for paper stretch.
 //
 // The scan's resolution may differ from the artwork's: it enters as the nominal scale, and the fitted scale
 // is reported relative to it (1 = the sheet is scanned at its true size).
-import { apply, coveredRect, compose, invert, scaling, translate, type Affine } from "./align-affine";
-import { coarsePlacement, type CoarseResult } from "./align-coarse";
-import { localField } from "./align-field";
-import { refineOnPatches } from "./align-patches";
+import { apply, coveredRect, compose, invert, scaling, translate, type Affine } from "./affine";
+import { coarsePlacement, type CoarseResult } from "./coarse";
+import { localField } from "./field";
+import { refineOnPatches } from "./patches";
 import { loadOpenCv, openCvMessage, withMats, type OpenCv } from "./opencv";
 import { greyLevel, halve, levelToFull, type GreyLevel } from "./pyramid";
-import { pxRectToMm, pxToMm } from "./raster";
-import { ImagingError, type Alignment, type ArtworkRaster, type DisplacementField, type RgbaImage, type ScanImage } from "./types";
+import { pxRectToMm, pxToMm } from "../raster";
+import { ImagingError, type Alignment, type ArtworkRaster, type DisplacementField, type RgbaImage, type ScanImage } from "../types";
 
-export { warpScanToArtwork } from "./align-warp";
+export { warpScanToArtwork } from "./warp";
 export type { DisplacementField };
 
 export interface AlignOptions {
@@ -200,7 +200,8 @@ function ecc(cv: OpenCv, art: GreyLevel, scan: GreyLevel, map: Affine, nominal: 
       if (/uncorrelated|non-overlapped|converge/i.test(message)) throw mismatch();
       throw new Error(`ECC registration failed: ${message}`);
     }
-    const w = Array.from(warp.data32F as Float32Array) as Affine;
+    const [a, b, c, d, e, f] = warp.data32F as Float32Array;
+    const w: Affine = [a, b, c, d, e, f];
     const found = levelMapToFull(compose(w, translate(scaling(1), -x0, -y0)), art.k, scan.k);
     // A fit that has run off (folded, or beyond ±10 % of the nominal size) is no registration at all.
     const det = found[0] * found[4] - found[1] * found[3];

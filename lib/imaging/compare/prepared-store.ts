@@ -8,7 +8,7 @@
 // here, and a stored object whose maps differ from what this build prepares is refused as stale.
 import { crc32 } from "node:zlib";
 import { BLEED_PX, CACHE_MAX_PIXELS, preparePageRows, prepareLowPassed, type ContrastWindows, type PreparedRect } from "./prepared";
-import type { RgbaImage } from "./types";
+import type { RgbaImage } from "../types";
 
 /**
  * Bump whenever the preparation's arithmetic changes (blur, low-pass, contrast windows): objects of another

@@ -3,12 +3,12 @@
 // or every edge of fine type differs by a few ΔE00 and the edge allowance has to swallow it. The blur is
 // found by trying a few Gaussian widths (in linear light, as optics blend) on windows of the artwork that hold
 // edges, and keeping the one whose low-passed result lies nearest the normalised scan.
-import { warpScanToArtwork } from "./align-warp";
-import { ArtworkCache } from "./artwork-cache";
+import { warpScanToArtwork } from "../align/warp";
+import { ArtworkCache } from "../compare/artwork-cache";
 import { linearToSrgb255Fast, SRGB8_TO_LINEAR } from "./colour";
 import { applyColourModel, type ColourModel } from "./colour-model";
-import { intersect, type PxRect } from "./raster";
-import type { Alignment, RgbaImage } from "./types";
+import { intersect, type PxRect } from "../raster";
+import type { Alignment, RgbaImage } from "../types";
 
 /**
  * Widths tried (σ, px of the artwork grid), finer where small: on type at 300 dpi a step from none to 0.45 px

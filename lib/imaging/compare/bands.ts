@@ -1,14 +1,14 @@
 // One rectangle of the sheet through normalise and compare: fetch artwork and aligned scan with a halo wide
 // enough for the low-pass and the registration radius, low-pass both, apply the colour model to the scan,
 // then compare the core. Full-width bands of this keep memory bounded on a B1 sheet at 300 dpi.
-import { warpScanToArtwork } from "./align";
-import { WarpBuffers } from "./align-warp";
+import { warpScanToArtwork } from "../align/align";
+import { WarpBuffers } from "../align/warp";
 import { compareBand, CompareScratch, type BandDifference, type SheetSample } from "./compare";
-import { lowPassRgb, mapColours, type ColourModel } from "./normalise";
+import { lowPassRgb, mapColours, type ColourModel } from "../colour/normalise";
 import { preparedRect, type ContrastWindows } from "./prepared";
-import { removeLightField, type LightField } from "./light-field";
-import { intersect, type PxRect } from "./raster";
-import type { Alignment, RgbaImage } from "./types";
+import { removeLightField, type LightField } from "../colour/light-field";
+import { intersect, type PxRect } from "../raster";
+import type { Alignment, RgbaImage } from "../types";
 
 /** RGB (3 bytes a pixel) of a rectangle of the scan seen in the artwork's pixel grid, and 1 where the scan covers it. */
 export type AlignedScanSource = (rect: PxRect) => { rgb: Uint8Array; mask: Uint8Array };

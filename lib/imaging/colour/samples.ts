@@ -3,10 +3,10 @@
 // flatness) is the same for every sheet and is kept per artwork and thread. "Flat" pairs lie where the artwork is uniform over the
 // whole radius of the low-pass and registration tolerance, so misregistration cannot bias them; "all" pairs
 // (window means of both) feed the percentile anchors of the tone curves.
-import { ArtworkCache } from "./artwork-cache";
+import { ArtworkCache } from "../compare/artwork-cache";
 import { linearToSrgb255Fast, SRGB8_TO_LINEAR } from "./colour";
-import type { AffineMap, PxRect } from "./raster";
-import type { RgbaImage } from "./types";
+import type { PxRect } from "../raster";
+import type { Affine, RgbaImage } from "../types";
 
 export interface SamplePairs {
   flatArt: Float32Array;
@@ -78,7 +78,7 @@ function windowMean(data: Uint8Array | Uint8ClampedArray, width: number, cx: num
 export function sampleFlatPairs(
   artwork: RgbaImage,
   scan: RgbaImage,
-  m: AffineMap,
+  m: Affine,
   inside: PxRect,
   radiusPx: number,
 ): SamplePairs {

@@ -1,7 +1,7 @@
 // Results that depend on the artwork alone, kept per thread for the sheets of its press run: held weakly by
 // the artwork's pixel buffer (they go with it) and keyed by the view into that buffer and whatever else they
 // depend on. Never shared between threads.
-import type { RgbaImage } from "./types";
+import type { RgbaImage } from "../types";
 
 export class ArtworkCache<T> {
   private readonly byBuffer = new WeakMap<ArrayBufferLike, Map<string, T>>();

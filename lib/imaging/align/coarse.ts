@@ -14,7 +14,7 @@
 // glass, background around it) the rotated artwork is looked for in the scan; when the scan sees only part
 // of the sheet (a press sheet larger than the flatbed) the scan, turned back, is looked for in the artwork,
 // which is padded with the lid's colour so that the scan window may also run past the sheet's edge.
-import { apply, invert, rotation, translate, type Affine } from "./align-affine";
+import { apply, invert, rotation, translate, type Affine } from "./affine";
 import { withMats, type OpenCv } from "./opencv";
 import type { GreyLevel } from "./pyramid";
 

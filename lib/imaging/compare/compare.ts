@@ -10,7 +10,7 @@
 // 4. ΔE00 (CIE 142-2001) is computed for the best-matching pair only, after a ΔE*ab bound: ΔE00 never
 //    exceeded 1.39 × ΔE*ab over 300 000 random sRGB pairs, so ΔE*ab < low / 1.4 cannot reach `low`.
 import pixelmatch from "pixelmatch";
-import { D65_WHITE, deltaE00, labFFast, SRGB8_TO_LINEAR, SRGB_TO_XYZ } from "./colour";
+import { D65_WHITE, deltaE00, labFFast, SRGB8_TO_LINEAR, SRGB_TO_XYZ } from "../colour/colour";
 import type { PreparedRect } from "./prepared";
 
 /** Class of a flagged pixel, by whether the scan lies farther from paper white than the artwork. */

@@ -5,10 +5,10 @@
 import sharp from "sharp";
 import { deltaE00, srgbToLab } from "./colour";
 import { evaluateModel, fitColourModel, identityModel, type ColourModel } from "./colour-model";
-import { rgbaToRgb, rgbToRgba, type AffineMap, type PxRect } from "./raster";
+import { rgbaToRgb, rgbToRgba, type PxRect } from "../raster";
 import { fitLightField, type LightField } from "./light-field";
 import { sampleFlatPairs, type SamplePairs } from "./samples";
-import type { RgbaImage } from "./types";
+import type { Affine, RgbaImage } from "../types";
 
 export { applyColourModel, mapColours, type ColourModel } from "./colour-model";
 
@@ -57,7 +57,7 @@ const MIN_FLAT_SAMPLES = 30;
 export function fitNormalisation(
   artwork: RgbaImage,
   scan: RgbaImage,
-  artworkToScan: AffineMap,
+  artworkToScan: Affine,
   inspectPx: PxRect,
   radiusPx: number,
 ): NormalisationFit {

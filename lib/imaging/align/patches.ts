@@ -10,12 +10,12 @@
 // the second starts from the first fit, so the offsets are near zero, where the parabola's bias vanishes.
 // The search radius is a millimetre, far below the pitch of repeated ups, so no window can lock onto the wrong up.
 // The same measurement on a denser grid, relative to the final affine, gives the optional local field
-// (align-field.ts).
-import { apply, compose, fitAffine, type Affine } from "./align-affine";
-import { peak } from "./align-coarse";
+// (field.ts).
+import { apply, compose, fitAffine, type Affine } from "./affine";
+import { peak } from "./coarse";
 import { withMats, type OpenCv } from "./opencv";
 import { levelPixel, levelToFull, levelWindow } from "./pyramid";
-import type { RgbaImage } from "./types";
+import type { RgbaImage } from "../types";
 
 export type Image = RgbaImage & { dpi: number };
 
@@ -81,7 +81,7 @@ export function refineOnPatches(cv: OpenCv, artwork: Image, scan: Image, map: Af
       }
     }
   }
-  // The fine level and covered area go back with the result for the optional local field (align-field.ts).
+  // The fine level and covered area go back with the result for the optional local field (field.ts).
   return { map, residualPx: Number.isFinite(residualPx) ? residualPx : 0, agreement, fine: cover ? { art, toFull, cover, dpi: artwork.dpi / kF } : null };
 }
 
