@@ -1,7 +1,7 @@
 // A day's work end to end in the browser, every step through the app's own pages and the real worker: prepress
 // creates a customer and a job, uploads the artwork PDF, draws an excluded area on its page picture with the
-// pointer (then draws a second one and removes it) and approves; QA uploads a scan with its sheet number and
-// watches the worker inspect it; a reviewer decides every finding (a reject with its comment) and signs the sheet
+// pointer (then draws a second one and removes it) and approves; QA uploads two scans with their sheet numbers
+// and watches the worker inspect them; a reviewer decides every finding (a reject with its comment) and signs the sheet
 // off re-entering the password; the customer's user sees the signed result of their own job and gets 404 for
 // another customer's job. axe-core (Deque's WCAG rules engine, npm axe-core) runs on the job page and the sheet
 // page: no serious or critical violation. Screenshots at 1366 and 768 px in test-results/story-*.png.
@@ -126,24 +126,29 @@ describe("a day's work, end to end in the browser", () => {
     await page.close();
   });
 
-  it("QA uploads a scan with its sheet number and watches the worker inspect it", async () => {
+  it("QA uploads two scans with their sheet numbers and watches the worker inspect them", async () => {
     const page = await browser.context.newPage();
     await signIn(page, people.qa.email, PASSWORD);
     await page.goto(jobUrl);
-    // The printed sheet with two ink spots (hickeys), one in each up, away from the excluded area.
+    // Sheet 3141 carries two ink spots (hickeys), one in each up, away from the excluded area; sheet 3142 is clean.
     const clean = await perfectScanPng(pdf, SCAN_DPI);
     const dot = Buffer.from(`<svg width="40" height="40"><circle cx="20" cy="20" r="6" fill="#1a1a1a"/></svg>`);
     const spotted = await sharp(clean).composite([{ input: dot, left: 300, top: 250 }, { input: dot, left: 900, top: 300 }]).png().toBuffer();
-    await page.setInputFiles("input[type=file][accept*=tiff]", { name: "press-pull.png", mimeType: "image/png", buffer: spotted });
-    await page.getByLabel("Sheet number of press-pull.png").fill("3141");
+    await page.setInputFiles("input[type=file][accept*=tiff]", [
+      { name: "press-pull-3141.png", mimeType: "image/png", buffer: spotted },
+      { name: "press-pull-3142.png", mimeType: "image/png", buffer: clean },
+    ]);
+    await page.getByLabel("Sheet number of press-pull-3141.png").fill("3141");
+    await page.getByLabel("Sheet number of press-pull-3142.png").fill("3142");
     await page.getByRole("button", { name: "Upload", exact: true }).click();
-    await page.getByText(/sheet 3141/i).first().waitFor({ timeout: 60_000 });
-    const open = page.getByRole("link", { name: "Open sheet" });
-    await open.waitFor({ timeout: 240_000 });
-    sheetUrl = new URL((await open.getAttribute("href"))!, APP_URL).toString();
+    await page.getByText(/sheet 3142/i).first().waitFor({ timeout: 60_000 });
+    const opens = page.getByRole("link", { name: "Open sheet" });
+    await expect.poll(() => opens.count(), { timeout: 300_000, interval: 1000 }).toBe(2);
+    const spottedRow = page.getByRole("row").filter({ hasText: "press-pull-3141.png" });
+    sheetUrl = new URL((await spottedRow.getByRole("link", { name: "Open sheet" }).getAttribute("href"))!, APP_URL).toString();
     expect(await shootAndCheck(page, "story-job-qa")).toEqual([]);
     await page.close();
-  }, 300_000);
+  }, 400_000);
 
   it("the reviewer decides every finding, rejecting one with a comment, and signs the sheet off with the password", async () => {
     const page = await browser.context.newPage();
