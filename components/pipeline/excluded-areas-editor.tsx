@@ -17,6 +17,11 @@ type Point = { x: number; y: number };
 function PagePicture({ revision, onLoaded }: { revision: RevisionView; onLoaded: () => void }) {
   const [attempt, setAttempt] = useState(0);
   const [failed, setFailed] = useState(false);
+  const image = useRef<HTMLImageElement>(null);
+  useEffect(() => {
+    // A picture already in the browser's cache can finish before React listens for its load event.
+    if (image.current?.complete && image.current.naturalWidth > 0) onLoaded();
+  }, [onLoaded]);
   useEffect(() => {
     if (!failed) return;
     // The worker is still making the picture: ask again shortly.
@@ -30,6 +35,7 @@ function PagePicture({ revision, onLoaded }: { revision: RevisionView; onLoaded:
     <>
       {/* eslint-disable-next-line @next/next/no-img-element -- a policy-checked route, not a static asset */}
       <img
+        ref={image}
         src={`/api/artworks/${revision.id}/preview${attempt ? `?try=${attempt}` : ""}`}
         alt={`Page 1 of artwork revision ${revision.revision}`}
         className="absolute inset-0 h-full w-full select-none"

@@ -101,38 +101,51 @@ export async function alignScan(artwork: ArtworkRaster, scan: ScanImage, opts: A
   // its third iteration leaves the patches' first offsets as small as its thirtieth did (measured: medians
   // ≤ 0.37 px at 100 dpi over all quarter turns ±7°); without it they were ~4 px, near the patches' radius.
   const nominal = scan.dpi / artwork.dpi;
-  const fitEcc = (start: Affine) => {
-    const m = ecc(cv, artC, scanC, start, nominal, 50).map;
-    return ecc(cv, artE, scanE, m, nominal, 3);
-  };
-  const first = firstFit(coarse, (m) => fitEcc(levelMapToFull(m, artC.k, scanC.k)));
-  let { map: eccMap, rho } = first;
-  // Other placements the coarse level found nearly as good (a window onto repeated ups): each is fitted as
-  // the first was, and the finer level's correlation chooses; two that fit alike mean the scan cannot be placed.
-  let runnerRho = -1;
-  for (const alt of coarse.alternatives) {
-    if (alt.score < coarse.score - AMBIGUITY_SEARCH) continue;
-    let fit: { map: Affine; rho: number };
-    try {
-      fit = fitEcc(levelMapToFull(alt.map, artC.k, scanC.k));
-    } catch (e) {
-      if (e instanceof ImagingError) continue;
-      throw e;
+  const sameScale = Math.abs(ratio - 1) < 0.02;
+  const place = (rigid: boolean) => {
+    const fitEcc = (start: Affine) => {
+      const begin = rigid ? ecc(cv, artC, scanC, start, nominal, 50, true).map : start;
+      const m = ecc(cv, artC, scanC, begin, nominal, 50).map;
+      return ecc(cv, artE, scanE, m, nominal, 3);
+    };
+    let { map: eccMap, rho } = firstFit(coarse, (m) => fitEcc(levelMapToFull(m, artC.k, scanC.k)));
+    // Other placements the coarse level found nearly as good (a window onto repeated ups): each is fitted as
+    // the first was, and the finer level's correlation chooses; two that fit alike mean the scan cannot be placed.
+    let runnerRho = -1;
+    for (const alt of coarse.alternatives) {
+      if (alt.score < coarse.score - AMBIGUITY_SEARCH) continue;
+      let fit: { map: Affine; rho: number };
+      try {
+        fit = fitEcc(levelMapToFull(alt.map, artC.k, scanC.k));
+      } catch (e) {
+        if (e instanceof ImagingError) continue;
+        throw e;
+      }
+      if (samePlace(fit.map, eccMap, artwork, scan)) continue;
+      if (fit.rho > rho) {
+        runnerRho = Math.max(runnerRho, rho);
+        ({ map: eccMap, rho } = fit);
+      } else runnerRho = Math.max(runnerRho, fit.rho);
     }
-    if (samePlace(fit.map, eccMap, artwork, scan)) continue;
-    if (fit.rho > rho) {
-      runnerRho = Math.max(runnerRho, rho);
-      ({ map: eccMap, rho } = fit);
-    } else runnerRho = Math.max(runnerRho, fit.rho);
+    if (!(rho >= MIN_CORRELATION)) throw mismatch();
+    const refined = refineOnPatches(cv, artwork, scan, eccMap);
+    if (refined.agreement !== null && refined.agreement < MIN_AGREEMENT) throw mismatch();
+    return { rho, runnerRho, refined };
+  };
+  // On a coarse level of few pixels the affine ECC can trade scale in one axis for correlation (a correct
+  // 1-up label at 200 dpi, turned −91.5°, ran to 0.87 × 0.98 and was refused). When it fails, the placement is
+  // tried again with a rotation-and-shift ECC first, held to the scanner's known scale. Only as a fallback: run
+  // first on every sheet, that step misplaced a fifth of the training sheets.
+  let placed: ReturnType<typeof place>;
+  try {
+    placed = place(false);
+  } catch (e) {
+    if (!sameScale || !(e instanceof ImagingError) || e.code !== "scan_mismatch") throw e;
+    placed = place(true);
   }
-  map = eccMap;
-  lap("ecc");
-  if (!(rho >= MIN_CORRELATION)) throw mismatch();
-
-  const refined = refineOnPatches(cv, artwork, scan, map);
+  const { rho, runnerRho, refined } = placed;
   map = refined.map;
-  lap("patches");
-  if (refined.agreement !== null && refined.agreement < MIN_AGREEMENT) throw mismatch();
+  lap("ecc");
   // Only a scan that matches is worth this question: it fits, but would it fit elsewhere as well?
   if (runnerRho > rho - AMBIGUITY_RHO_GAP) {
     throw new ImagingError("scan_ambiguous", "the scan shows only repeated parts of the sheet and cannot be placed; include a sheet edge or margin in the scan");
@@ -174,7 +187,7 @@ function describe(artwork: ArtworkRaster, scan: ScanImage, map: Affine, rho: num
  * cut to the part the scan covers first: ECC's cost is per template pixel, and a partial scan of a large sheet
  * would otherwise pay for the whole page.
  */
-function ecc(cv: OpenCv, art: GreyLevel, scan: GreyLevel, map: Affine, nominal: number, iterations: number) {
+function ecc(cv: OpenCv, art: GreyLevel, scan: GreyLevel, map: Affine, nominal: number, iterations: number, rigid = false) {
   const lm = compose(invert(levelToFull(scan.k)), compose(map, levelToFull(art.k)));
   const cover = coveredRect(lm, art.width, art.height, scan.width, scan.height);
   if (!cover) throw mismatch();
@@ -193,7 +206,7 @@ function ecc(cv: OpenCv, art: GreyLevel, scan: GreyLevel, map: Affine, nominal: 
     const criteria = new cv.TermCriteria(cv.TermCriteria_COUNT + cv.TermCriteria_EPS, iterations, 1e-6);
     let rho: number;
     try {
-      rho = cv.findTransformECC(templ, input, warp, cv.MOTION_AFFINE, criteria, mask, 5);
+      rho = cv.findTransformECC(templ, input, warp, rigid ? cv.MOTION_EUCLIDEAN : cv.MOTION_AFFINE, criteria, mask, 5);
     } catch (e) {
       // ECC gives up when the images do not correlate at all ("images may be uncorrelated").
       const message = openCvMessage(cv, e);
