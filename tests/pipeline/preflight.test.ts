@@ -1,15 +1,32 @@
 // Preflight of artwork PDFs: fonts used without being embedded. PDFs are built with pdf-lib; the rule checked is
 // ISO 32000-1:2008 §9.8 (font descriptors: the font program is in FontFile, FontFile2 or FontFile3; the standard
 // 14 fonts may go without a descriptor) — from memory — and poppler's pdffonts (an independent reader) is asked
-// the same question where it is installed.
+// the same question where it is installed. Then through the upload route and the real worker, as the job page
+// and /api/v1 show it.
+import "./support/test-env";
 import { execFileSync } from "node:child_process";
 import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import fontkit from "@pdf-lib/fontkit";
 import { PDFDocument, PDFName, PDFRef, StandardFonts, type PDFObject } from "pdf-lib";
-import { describe, expect, it } from "vitest";
+import { eq } from "drizzle-orm";
+import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
+import { db } from "@/db/client";
+import { artworkRevisions } from "@/db/schema";
+import * as schemas from "@/lib/api/schemas";
+import type { Actor } from "@/lib/auth/policy";
 import { preflightArtwork } from "@/lib/pipeline/preflight";
+import type { JobPipelineView } from "@/lib/pipeline/view";
+import { ensureBucket } from "@/storage/objects";
+import { makeFixture, multipart, until, type Fixture } from "./support/fixtures";
+import { emptyQueues, startWorker, type WorkerProcess } from "./support/worker-process";
+
+let actor: Actor;
+vi.mock("@/lib/auth/request-actor", () => ({ requestActor: async () => actor }));
+const { POST: postArtwork } = await import("@/app/api/jobs/[jobId]/artworks/route");
+const { GET: getPipeline } = await import("@/app/api/jobs/[jobId]/pipeline/route");
+const { GET: getJobV1 } = await import("@/app/api/v1/jobs/[jobId]/route");
 
 // Liberation Sans ships with pdfjs-dist (SIL Open Font Licence); any TrueType file would do.
 const LIBERATION_SANS = path.resolve("node_modules/pdfjs-dist/standard_fonts/LiberationSans-Regular.ttf");
@@ -132,7 +149,61 @@ describe("artwork preflight: fonts not embedded", () => {
   it("answers null (not “all embedded”) for bytes that are no PDF, and does not throw on a truncated one", async () => {
     expect(await preflightArtwork(new TextEncoder().encode("not a PDF at all"))).toBeNull();
     const whole = await helveticaPdf();
+    const quiet = vi.spyOn(console, "warn").mockImplementation(() => {}); // pdf-lib narrates its repairs
     const truncated = await preflightArtwork(whole.subarray(0, Math.floor(whole.length / 2)));
+    quiet.mockRestore();
     expect(truncated === null || Array.isArray(truncated.nonEmbeddedFonts)).toBe(true);
+  });
+});
+
+describe("artwork preflight through the upload and the worker", () => {
+  let fx: Fixture;
+  let worker: WorkerProcess;
+  const params = () => ({ params: Promise.resolve({ jobId: String(fx.jobId) }) });
+
+  beforeAll(async () => {
+    await ensureBucket();
+    await emptyQueues();
+    fx = await makeFixture({ rows: 1, columns: 1 });
+    worker = startWorker();
+    await worker.waitFor(/worker ready/);
+  });
+  afterAll(async () => {
+    await worker?.stop("SIGTERM");
+  });
+
+  async function uploadAndWait(fileName: string, pdf: Uint8Array) {
+    actor = fx.actors.prepress;
+    const res = await postArtwork(multipart([{ name: fileName, data: pdf }]), params());
+    expect(res.status).toBe(201);
+    const { revisionId } = await res.json();
+    // The job page stops polling once the draft's page size is known: the preflight must be there by then.
+    const row = await until(`preview of ${fileName}`, async () => {
+      const [r] = await db.select().from(artworkRevisions).where(eq(artworkRevisions.id, revisionId));
+      return r.pageWidthUm > 0 ? r : null;
+    });
+    return row;
+  }
+
+  it("a draft with Helvetica not embedded carries the preflight; one with its font embedded carries an empty list", async () => {
+    const loose = await uploadAndWait("tea-carton-loose-fonts.pdf", await helveticaPdf());
+    expect(loose.preflight).toEqual({ nonEmbeddedFonts: ["Helvetica", "Helvetica-Bold"] });
+    const embedded = await uploadAndWait("tablet-carton-fonts-embedded.pdf", await embeddedTrueTypePdf());
+    expect(embedded.preflight).toEqual({ nonEmbeddedFonts: [] });
+  });
+
+  it("the job page's view and /api/v1 show it, read-only to the customer too", async () => {
+    actor = fx.actors.customer;
+    const res = await getPipeline(new Request("http://x/"), params());
+    expect(res.status).toBe(200);
+    const view = (await res.json()) as JobPipelineView;
+    expect(view.revisions.map((r) => [r.revision, r.preflight])).toEqual([
+      [2, { nonEmbeddedFonts: [] }],
+      [1, { nonEmbeddedFonts: ["Helvetica", "Helvetica-Bold"] }],
+    ]);
+    actor = fx.actors.qa;
+    const v1 = await getJobV1(new Request("http://x/"), params());
+    const job = schemas.JobDetail.parse(await v1.json());
+    expect(job.revisions.find((r) => r.revision === 1)?.preflight?.nonEmbeddedFonts).toEqual(["Helvetica", "Helvetica-Bold"]);
   });
 });
