@@ -115,7 +115,7 @@ export function ArtworkPanel({ view, refresh }: { view: JobPipelineView; refresh
                 )}
               </p>
               {r.rasterError && <p className="w-full text-danger">{r.rasterError}</p>}
-              <FontsNotEmbedded revision={r} />
+              <FontsNotEmbedded revision={r} mayUpload={view.may.uploadArtwork} />
               <details className="group" open={index === 0}>
                 <summary className="cursor-pointer text-xs font-medium text-accent hover:underline">
                   Page and excluded areas ({r.excludedAreas.length})

@@ -5,11 +5,10 @@
 // and /api/v1 show it.
 import "./support/test-env";
 import { execFileSync } from "node:child_process";
-import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { existsSync, mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
-import fontkit from "@pdf-lib/fontkit";
-import { PDFDocument, PDFName, PDFRef, StandardFonts, type PDFObject } from "pdf-lib";
+import { PDFDocument, PDFName, PDFRef, type PDFObject } from "pdf-lib";
 import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { db } from "@/db/client";
@@ -19,6 +18,7 @@ import type { Actor } from "@/lib/auth/policy";
 import { preflightArtwork } from "@/lib/pipeline/preflight";
 import type { JobPipelineView } from "@/lib/pipeline/view";
 import { ensureBucket } from "@/storage/objects";
+import { embeddedTrueTypePdf, helveticaPdf } from "./support/font-pdfs";
 import { makeFixture, multipart, until, type Fixture } from "./support/fixtures";
 import { emptyQueues, startWorker, type WorkerProcess } from "./support/worker-process";
 
@@ -28,25 +28,7 @@ const { POST: postArtwork } = await import("@/app/api/jobs/[jobId]/artworks/rout
 const { GET: getPipeline } = await import("@/app/api/jobs/[jobId]/pipeline/route");
 const { GET: getJobV1 } = await import("@/app/api/v1/jobs/[jobId]/route");
 
-// Liberation Sans ships with pdfjs-dist (SIL Open Font Licence); any TrueType file would do.
-const LIBERATION_SANS = path.resolve("node_modules/pdfjs-dist/standard_fonts/LiberationSans-Regular.ttf");
 const hasPdffonts = existsSync("/usr/bin/pdffonts");
-
-async function helveticaPdf(): Promise<Uint8Array> {
-  const doc = await PDFDocument.create();
-  const page = doc.addPage([300, 200]);
-  page.drawText("Kestrelmoor Breakfast Tea", { x: 20, y: 150, size: 12, font: await doc.embedFont(StandardFonts.Helvetica) });
-  page.drawText("40 bags", { x: 20, y: 120, size: 12, font: await doc.embedFont(StandardFonts.HelveticaBold) });
-  return doc.save();
-}
-
-async function embeddedTrueTypePdf(): Promise<Uint8Array> {
-  const doc = await PDFDocument.create();
-  doc.registerFontkit(fontkit);
-  const font = await doc.embedFont(readFileSync(LIBERATION_SANS), { subset: true });
-  doc.addPage([300, 200]).drawText("Alverin 20 mg tablets", { x: 20, y: 150, size: 12, font });
-  return doc.save();
-}
 
 /** pdffonts' answer: name → embedded yes/no (its table: name, type, encoding, emb, sub, uni, object ID). */
 function pdffontsOf(bytes: Uint8Array): Map<string, boolean> {
