@@ -27,6 +27,7 @@ vi.mock("@/lib/auth/request-actor", () => ({ requestActor: async () => actor }))
 const { POST: postArtwork } = await import("@/app/api/jobs/[jobId]/artworks/route");
 const { GET: getPipeline } = await import("@/app/api/jobs/[jobId]/pipeline/route");
 const { GET: getJobV1 } = await import("@/app/api/v1/jobs/[jobId]/route");
+const { POST: approve } = await import("@/app/api/artworks/[revisionId]/approve/route");
 
 const hasPdffonts = existsSync("/usr/bin/pdffonts");
 
@@ -187,5 +188,17 @@ describe("artwork preflight through the upload and the worker", () => {
     const v1 = await getJobV1(new Request("http://x/"), params());
     const job = schemas.JobDetail.parse(await v1.json());
     expect(job.revisions.find((r) => r.revision === 1)?.preflight?.nonEmbeddedFonts).toEqual(["Helvetica", "Helvetica-Bold"]);
+  });
+
+  it("a revision approved without a preflight (uploaded before there were any) gets one from its raster job", async () => {
+    const [first] = await db.select().from(artworkRevisions).where(eq(artworkRevisions.jobId, fx.jobId)).orderBy(artworkRevisions.revision).limit(1);
+    await db.update(artworkRevisions).set({ preflight: null }).where(eq(artworkRevisions.id, first.id));
+    actor = fx.actors.prepress;
+    expect((await approve(new Request("http://x/"), { params: Promise.resolve({ revisionId: String(first.id) }) })).status).toBe(200);
+    const rastered = await until("raster", async () => {
+      const [r] = await db.select().from(artworkRevisions).where(eq(artworkRevisions.id, first.id));
+      return r.rasterStatus === "ready" ? r : null;
+    });
+    expect(rastered.preflight).toEqual({ nonEmbeddedFonts: ["Helvetica", "Helvetica-Bold"] });
   });
 });
