@@ -86,6 +86,12 @@ export interface ExcludedArea extends RectMm {
   label: string;
 }
 
+/** What the worker's preflight of an artwork PDF found (lib/pipeline/preflight.ts). */
+export interface ArtworkPreflight {
+  /** BaseFont names of fonts the PDF uses without embedding them, in the order first met. */
+  nonEmbeddedFonts: string[];
+}
+
 export const customers = mysqlTable("customers", {
   id: id(),
   name: varchar("name", { length: 200 }).notNull().unique(),
@@ -201,6 +207,8 @@ export const artworkRevisions = mysqlTable(
     rasterError: text("raster_error"),
     // The artwork's side of the comparison, prepared once by the raster job for every worker host.
     preparedKey: objectKey("prepared_key"),
+    // The preflight of the PDF, made by the worker with the draft's preview; null until it has run.
+    preflight: json<ArtworkPreflight>("preflight"),
     createdAt: createdAt(),
     updatedAt: updatedAt(),
   },

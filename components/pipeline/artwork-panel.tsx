@@ -9,6 +9,7 @@ import { errorMessageOf, postJson, sendForm } from "./send-form";
 import { formatBytes } from "@/lib/format";
 import { LocalTime } from "@/components/ui/local-time";
 import { ExcludedAreasEditor } from "./excluded-areas-editor";
+import { FontsNotEmbedded } from "./fonts-not-embedded";
 
 const statusLabel = { draft: "Draft", approved: "Approved", superseded: "Superseded" } as const;
 const rasterLabel = { none: "", pending: "Preparing for comparison…", ready: "Ready for comparison", failed: "Could not be prepared" } as const;
@@ -114,6 +115,7 @@ export function ArtworkPanel({ view, refresh }: { view: JobPipelineView; refresh
                 )}
               </p>
               {r.rasterError && <p className="w-full text-danger">{r.rasterError}</p>}
+              <FontsNotEmbedded revision={r} mayUpload={view.may.uploadArtwork} />
               <details className="group" open={index === 0}>
                 <summary className="cursor-pointer text-xs font-medium text-accent hover:underline">
                   Page and excluded areas ({r.excludedAreas.length})

@@ -53,6 +53,16 @@ export const ArtworkRevision = z
     pageHeightMm: z.number().nullable(),
     uploadedAt: isoTime,
     approvedAt: isoTime.nullable(),
+    preflight: z
+      .object({
+        nonEmbeddedFonts: z.array(z.string()).meta({
+          description:
+            "BaseFont names of fonts the PDF uses without embedding them (at most 100); a press's RIP substitutes its own font for each, so type may differ from the comparison raster",
+          example: ["Helvetica", "Helvetica-Bold"],
+        }),
+      })
+      .nullable()
+      .meta({ description: "Checks of the PDF made when the draft's preview is made; null until then, or when the PDF could not be read" }),
   })
   .meta({ id: "ArtworkRevision" });
 

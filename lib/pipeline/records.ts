@@ -2,7 +2,7 @@
 // transaction, so re-running an inspection (retry, a worker killed half-way) never duplicates findings.
 import { and, eq, inArray, ne, sql } from "drizzle-orm";
 import { db } from "@/db/client";
-import { artworkRevisions, customers, findings, inspections, jobs, scans, toleranceProfiles, users } from "@/db/schema";
+import { artworkRevisions, customers, findings, inspections, jobs, scans, toleranceProfiles, users, type ArtworkPreflight } from "@/db/schema";
 import type { Finding, InspectionResult, ToleranceProfile } from "@/lib/imaging/types";
 import { refreshRunMemory, revisionOfInspection } from "@/lib/run/memory-store";
 
@@ -43,6 +43,11 @@ export async function savePageSize(revisionId: number, page: { widthMm: number; 
     .update(artworkRevisions)
     .set({ pageWidthUm: um(page.widthMm), pageHeightUm: um(page.heightMm), pageBox: page.box, pageCount: page.pageCount })
     .where(and(eq(artworkRevisions.id, revisionId), ne(artworkRevisions.rasterStatus, "ready")));
+}
+
+/** The preflight of the revision's PDF (lib/pipeline/preflight.ts); null means it could not be read. */
+export async function savePreflight(revisionId: number, preflight: ArtworkPreflight | null) {
+  await db.update(artworkRevisions).set({ preflight }).where(eq(artworkRevisions.id, revisionId));
 }
 
 export async function savePrepared(revisionId: number, key: string) {

@@ -1,7 +1,7 @@
 // What the job page shows of the pipeline, cut to the fields the page needs. Polled while work is running.
 import { asc, desc, eq, inArray, sql } from "drizzle-orm";
 import { db } from "@/db/client";
-import { artworkRevisions, findings, inspections, scans, toleranceProfiles, users, type ExcludedArea, type RectMm } from "@/db/schema";
+import { artworkRevisions, findings, inspections, scans, toleranceProfiles, users, type ArtworkPreflight, type ExcludedArea, type RectMm } from "@/db/schema";
 import { can, type Actor } from "@/lib/auth/policy";
 import { loadJobFor } from "./access";
 import { upsAreaOf } from "./excluded-areas";
@@ -27,6 +27,8 @@ export interface RevisionView {
   /** Where the ups sit on the page, mm; null means the whole page. */
   upsAreaMm: RectMm | null;
   excludedAreas: ExcludedArea[];
+  /** The worker's preflight of the PDF (fonts not embedded); null until it has run or when the PDF was unreadable. */
+  preflight: ArtworkPreflight | null;
 }
 
 export interface SheetView {
@@ -171,6 +173,7 @@ export async function getJobPipeline(actor: Actor, jobId: number): Promise<JobPi
       upsColumns: r.upsColumns,
       upsAreaMm: upsAreaOf(r),
       excludedAreas: r.excludedAreas,
+      preflight: r.preflight,
     })),
     profiles,
     sheets,

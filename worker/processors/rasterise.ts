@@ -7,7 +7,8 @@ import { contrastWindows, likelyScannerBlurPx } from "@/lib/imaging/inspect";
 import { getProfile } from "@/lib/imaging/profiles";
 import { MIN_DPI, rasterisePage } from "@/lib/imaging/rasterise/rasterise";
 import { ImagingError, type RgbaImage } from "@/lib/imaging/types";
-import { failRaster, likelyRegistrationToleranceMm, loadRevisionWork, savePageSize, savePrepared, saveRaster } from "@/lib/pipeline/records";
+import { preflightArtwork } from "@/lib/pipeline/preflight";
+import { failRaster, likelyRegistrationToleranceMm, loadRevisionWork, savePageSize, savePreflight, savePrepared, saveRaster } from "@/lib/pipeline/records";
 import type { RasteriseData } from "@/lib/queue/queues";
 import { keys, sourceObjectId } from "@/storage/keys";
 import { preparedKey, storePrepared } from "../prepared-artwork";
@@ -28,6 +29,9 @@ async function preview(work: NonNullable<Awaited<ReturnType<typeof loadRevisionW
   const key = keys.preview(sourceObjectId(revision.sourceKey));
   const pdf = new Uint8Array(await getObjectBuffer(revision.sourceKey));
   if (await pdfHasScript(pdf)) throw new UnrecoverableError("The artwork PDF contains JavaScript; no preview is made.");
+  // Before the page size: the job page stops polling once a draft's size is known, and prepress should see
+  // the preflight then, before approving.
+  await savePreflight(revision.id, await preflightArtwork(pdf));
   let page;
   try {
     // pdf.js's lowest resolution here; the preview is then scaled to at most PREVIEW_MAX_PX.
@@ -60,6 +64,8 @@ export default async function rasterise(job: SandboxedJob<RasteriseData>): Promi
     await failRaster(revision.id, message);
     throw new UnrecoverableError(message);
   }
+  // A revision approved before its preview ran (or from before preflights existed) gets one here.
+  if (!revision.preflight) await savePreflight(revision.id, await preflightArtwork(new Uint8Array(pdf)));
   let page;
   try {
     page = await rasterisePage(new Uint8Array(pdf), { page: 1, dpi });

@@ -1,0 +1,1 @@
+ALTER TABLE `artwork_revisions` ADD `preflight` json;
