@@ -162,9 +162,13 @@ export function ExcludedAreasEditor({ revision, editable, refresh }: { revision:
           </p>
         </div>
         <div className="space-y-3">
-          <h4 className="text-sm font-semibold">Excluded areas {editable ? "" : "(locked with the approval)"}</h4>
+          <h4 className="text-sm font-semibold">Excluded areas {editable || revision.status === "draft" ? "" : "(locked with the approval)"}</h4>
           {areas.length === 0 ? (
-            <p className="text-sm text-ink-muted">{editable ? "None yet. Drag on the page, or add one and type its position." : "None: the whole page was compared."}</p>
+            <p className="text-sm text-ink-muted">{editable
+                ? "None yet. Drag on the page, or add one and type its position."
+                : revision.status === "draft"
+                  ? "None yet: prepress draws them before approving."
+                  : "None: the whole page is compared."}</p>
           ) : (
             <ol className="space-y-3">
               {areas.map((a, i) => (
