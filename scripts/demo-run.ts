@@ -21,7 +21,8 @@ import { simulateSheet, type SimulateOptions } from "../tests/support/simulator/
 // Overridable so a second demo job can be made beside the first (e.g. on the test services).
 const JOB_NUMBER = process.env.DEMO_JOB_NUMBER ?? "WF-24130";
 const CUSTOMER = "Kestrelmoor Tea Company";
-const CARTON: CartonOptions = { widthMm: 297, heightMm: 210, rows: 2, columns: 3 };
+// Fonts embedded, as a print-ready artwork PDF has them (the job page warns about any that are not).
+const CARTON: CartonOptions = { widthMm: 297, heightMm: 210, rows: 2, columns: 3, embedFonts: true };
 const PROFILE = "standard-food";
 const WAIT_MS = 10 * 60_000;
 

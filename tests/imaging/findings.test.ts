@@ -99,4 +99,24 @@ describe("regions to findings", () => {
     const { findings } = regionsToFindings(c.regions(), { ...rules, minAreaMm2: 0.05 });
     expect(findings.map((f) => f.kind)).toEqual(["extra_ink"]);
   });
+
+  it("reports a colour shift by its mean against the profile's ΔE00, an ink speck by its peak", () => {
+    // Under a profile of ΔE00 4, three 20 × 20 px (2 × 2 mm) coherent colour regions, each with pixels over the
+    // second level (5): columns of 2 and 5 (mean 3.5: within tolerance, dropped), of 3 and 5 (mean 4: kept) and 6.
+    const row = "#".repeat(20) + ".".repeat(10) + "#".repeat(20) + ".".repeat(10) + "#".repeat(20);
+    const b = band(80, Array.from({ length: 20 }, () => row), PIXEL_COLOUR_SHIFT);
+    for (let y = 0; y < 20; y++) for (let x = 0; x < 80; x++) {
+      const i = y * 80 + x;
+      if (b.deltaE[i] === 0) continue;
+      b.deltaE[i] = b.score[i] = x % 2 === 0 && x < 50 ? 5 : x < 20 ? 2 : x < 50 ? 3 : 6;
+      b.shift[i * 3 + 1] = 6;
+    }
+    const c = new RegionCollector(80, 5, true);
+    c.addBand(b, 20, 0);
+    const { findings } = regionsToFindings(c.regions(), { ...rules, pageMm: { widthMm: 8, heightMm: 2 }, peakDeltaE00: 4 });
+    expect(findings.map((f) => [f.kind, f.xMm, f.deltaE00Mean]).sort((a, b) => Number(a[1]) - Number(b[1]))).toEqual([
+      ["colour_shift", 3, 4],
+      ["colour_shift", 6, 6],
+    ]);
+  });
 });

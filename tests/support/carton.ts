@@ -1,6 +1,9 @@
 // Test artwork: an invented folding-carton press sheet ("Brindlewood Tea Co.", a fictional brand) as a PDF,
 // rows × columns of identical ups, plus the layout in millimetres so tests know where every element and
 // every planted defect lies. Coordinates: mm from the top-left of the trim box, x right, y down.
+import { readFile } from "node:fs/promises";
+import path from "node:path";
+import fontkit from "@pdf-lib/fontkit";
 import { PDFDocument, StandardFonts, rgb, type PDFFont, type PDFPage, type RGB } from "pdf-lib";
 import type { RectMm, UpsLayout } from "@/lib/imaging/types";
 
@@ -26,6 +29,8 @@ export interface CartonOptions {
   sheetNumber?: string;
   /** Number of identical pages. Default 1. */
   pages?: number;
+  /** Embed the type (DejaVu Sans, shipped with the app) as print-ready PDFs do; default false: Helvetica, not embedded. */
+  embedFonts?: boolean;
 }
 
 export interface UpParts {
@@ -104,12 +109,21 @@ export async function makeCartonPdf(opts: CartonOptions = {}): Promise<{ pdf: Ui
     slugMm = 5,
     sheetNumberBox = true,
     pages = 1,
+    embedFonts = false,
   } = opts;
   const doc = await PDFDocument.create();
   doc.setTitle("Carton sheet (test artwork)");
   doc.setProducer("Tympan test support");
-  const font = await doc.embedFont(StandardFonts.Helvetica);
-  const bold = await doc.embedFont(StandardFonts.HelveticaBold);
+  let font: PDFFont, bold: PDFFont;
+  if (embedFonts) {
+    doc.registerFontkit(fontkit);
+    const dir = path.join(process.cwd(), "node_modules", "dejavu-fonts-ttf", "ttf");
+    font = await doc.embedFont(await readFile(path.join(dir, "DejaVuSans.ttf")), { subset: true });
+    bold = await doc.embedFont(await readFile(path.join(dir, "DejaVuSans-Bold.ttf")), { subset: true });
+  } else {
+    font = await doc.embedFont(StandardFonts.Helvetica);
+    bold = await doc.embedFont(StandardFonts.HelveticaBold);
+  }
 
   const area: RectMm = { x: marginMm, y: marginMm, w: widthMm - 2 * marginMm, h: heightMm - 2 * marginMm };
   const upW = (area.w - (columns - 1) * gutterMm) / columns;
