@@ -4,16 +4,13 @@
 // (Deque's WCAG rules engine, npm axe-core): no serious or critical violation. Screenshots at 1366 and 768 px in
 // test-results/artwork-preflight-*.png.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { closeDb } from "../../db/client";
 import { createCustomer, createJob, createUser } from "../db/fixtures";
 import { embeddedTrueTypePdf, helveticaPdf } from "../pipeline/support/font-pdfs";
 import { ensureProfiles } from "../pipeline/support/fixtures";
-import { startWorker, type WorkerProcess } from "../pipeline/support/worker-process";
-import { APP_URL, openBrowser, requireRunningApp, shootAndCheck, signIn } from "./browser";
+import { APP_URL, openWithWorker, requireRunningApp, shootAndCheck, signIn } from "./browser";
 
 const PASSWORD = "fonts are embedded 1";
-let browser: Awaited<ReturnType<typeof openBrowser>>;
-let worker: WorkerProcess;
+let browser: Awaited<ReturnType<typeof openWithWorker>>;
 let jobUrl = "";
 let prepress: Awaited<ReturnType<typeof createUser>>;
 let buyer: Awaited<ReturnType<typeof createUser>>;
@@ -26,15 +23,11 @@ beforeAll(async () => {
   jobUrl = `${APP_URL}/jobs/${job.id}`;
   prepress = await createUser({ role: "prepress", password: PASSWORD });
   buyer = await createUser({ role: "customer", customerId: customer.id, password: PASSWORD });
-  worker = startWorker();
-  await worker.waitFor(/worker ready/);
-  browser = await openBrowser();
+  browser = await openWithWorker();
 }, 180_000);
 
 afterAll(async () => {
   await browser?.close();
-  await worker?.stop("SIGTERM");
-  await closeDb();
 });
 
 const WARNING = "Fonts not embedded: Helvetica, Helvetica-Bold.";

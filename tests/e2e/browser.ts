@@ -5,7 +5,9 @@ import { createRequire } from "node:module";
 import os from "node:os";
 import path from "node:path";
 import { chromium, type BrowserContext, type Page } from "playwright-core";
+import { closeDb } from "../../db/client";
 import { env } from "../../lib/env";
+import { startWorker, type WorkerProcess } from "../pipeline/support/worker-process";
 
 export const APP_URL = env.APP_URL;
 
@@ -71,3 +73,20 @@ export async function shootAndCheck(page: Page, name: string): Promise<string[]>
   await page.setViewportSize({ width: 1366, height: 900 });
   return violations;
 }
+
+/** The real worker and a browser for a story through the app; `close` stops both and the test's database pool. */
+export async function openWithWorker(): Promise<{ context: BrowserContext; worker: WorkerProcess; close: () => Promise<void> }> {
+  const worker = startWorker();
+  await worker.waitFor(/worker ready/);
+  const browser = await openBrowser();
+  return {
+    context: browser.context,
+    worker,
+    close: async () => {
+      await browser.close();
+      await worker.stop("SIGTERM");
+      await closeDb();
+    },
+  };
+}
+

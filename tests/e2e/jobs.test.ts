@@ -6,12 +6,10 @@
 import { createRequire } from "node:module";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
-import { closeDb } from "../../db/client";
 import { ensureProfiles } from "../pipeline/support/fixtures";
 import { cartonArtwork } from "../pipeline/support/artwork";
-import { startWorker, type WorkerProcess } from "../pipeline/support/worker-process";
 import { createCustomer, createJob, createUser, unique } from "../db/fixtures";
-import { APP_URL, artifact, openBrowser, requireRunningApp } from "./browser";
+import { APP_URL, artifact, openWithWorker, requireRunningApp } from "./browser";
 
 const PASSWORD = "jobs browser password 1";
 const axePath = createRequire(import.meta.url).resolve("axe-core/axe.min.js");
@@ -20,8 +18,7 @@ const SIZES = [
   ["768", { width: 768, height: 1024 }],
 ] as const;
 
-let browser: Awaited<ReturnType<typeof openBrowser>>;
-let worker: WorkerProcess;
+let browser: Awaited<ReturnType<typeof openWithWorker>>;
 let prepress: Awaited<ReturnType<typeof createUser>>;
 let admin: Awaited<ReturnType<typeof createUser>>;
 let otherJob: Awaited<ReturnType<typeof createJob>>;
@@ -38,15 +35,11 @@ beforeAll(async () => {
   const other = await createCustomer();
   otherJob = await createJob(other.id);
   existingJob = await createJob(other.id);
-  worker = startWorker();
-  await worker.waitFor(/worker ready/);
-  browser = await openBrowser();
+  browser = await openWithWorker();
 });
 
 afterAll(async () => {
   await browser?.close();
-  await worker?.stop("SIGTERM");
-  await closeDb();
 });
 
 async function signIn(page: Page, email: string) {

@@ -9,21 +9,19 @@ import { eq } from "drizzle-orm";
 import sharp from "sharp";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
-import { closeDb, db } from "../../db/client";
+import { db } from "../../db/client";
 import { artworkRevisions, customers } from "../../db/schema";
 import { createCustomer, createJob, createUser, unique } from "../db/fixtures";
 import { cartonArtwork, perfectScanPng } from "../pipeline/support/artwork";
 import { ensureProfiles } from "../pipeline/support/fixtures";
-import { startWorker, type WorkerProcess } from "../pipeline/support/worker-process";
-import { APP_URL, openBrowser, requireRunningApp, shootAndCheck, signIn } from "./browser";
+import { APP_URL, openWithWorker, requireRunningApp, shootAndCheck, signIn } from "./browser";
 
 const PASSWORD = "story of a day 1";
 const SCAN_DPI = 150;
 const customerName = unique("Larkspur Preserves");
 const jobNumber = unique("LP-STORY");
 
-let browser: Awaited<ReturnType<typeof openBrowser>>;
-let worker: WorkerProcess;
+let browser: Awaited<ReturnType<typeof openWithWorker>>;
 let people: Record<"prepress" | "qa" | "reviewer", Awaited<ReturnType<typeof createUser>>>;
 let otherJob: Awaited<ReturnType<typeof createJob>>;
 let pdf: Uint8Array;
@@ -40,15 +38,11 @@ beforeAll(async () => {
   };
   otherJob = await createJob((await createCustomer()).id);
   ({ pdf } = await cartonArtwork({ rows: 1, columns: 2 }));
-  worker = startWorker();
-  await worker.waitFor(/worker ready/);
-  browser = await openBrowser();
+  browser = await openWithWorker();
 }, 180_000);
 
 afterAll(async () => {
   await browser?.close();
-  await worker?.stop("SIGTERM");
-  await closeDb();
 });
 
 /** Drags on the page picture from one point to another, both in mm of the page. */
