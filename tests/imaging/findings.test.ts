@@ -56,22 +56,22 @@ describe("regions to findings", () => {
   });
 
   it("drops a colour region whose differences point every way (a beating screen) but keeps a speck of ink inside it", () => {
-    // 10 × 10 px of colour-shift pixels whose CIELAB differences alternate ±8 in a* (mean vector 0), with a
-    // 2 × 2 px speck of extra ink in the middle; and a second, coherent patch of 11 × 10 px (+8 in b* everywhere).
-    const rows = Array.from({ length: 10 }, () => "##########.###########");
-    const b = band(22, rows, PIXEL_COLOUR_SHIFT, 8);
-    for (let y = 0; y < 10; y++) for (let x = 0; x < 22; x++) {
-      const i = y * 22 + x;
+    // 10 × 20 px of colour-shift pixels whose CIELAB differences alternate ±8 in a* (mean vector 0), with a
+    // 2 × 2 px speck of extra ink in it; and a second, coherent patch of 21 × 20 px (+8 in b* everywhere).
+    const rows = Array.from({ length: 20 }, () => "##########." + "#".repeat(21));
+    const b = band(32, rows, PIXEL_COLOUR_SHIFT, 8);
+    for (let y = 0; y < 20; y++) for (let x = 0; x < 32; x++) {
+      const i = y * 32 + x;
       if (b.deltaE[i] === 0) continue;
       if (x < 10) b.shift[i * 3 + 1] = (x + y) % 2 === 0 ? 8 : -8;
       else b.shift[i * 3 + 2] = 8;
     }
-    for (const [x, y] of [[4, 4], [5, 4], [4, 5], [5, 5]]) { b.kind[y * 22 + x] = PIXEL_EXTRA_INK; b.deltaE[y * 22 + x] = b.score[y * 22 + x] = 20; }
-    const ink = new RegionCollector(22, 5, false), colour = new RegionCollector(22, 5, true);
-    ink.addBand(b, 10, 0);
-    colour.addBand(b, 10, 0);
+    for (const [x, y] of [[4, 4], [5, 4], [4, 5], [5, 5]]) { b.kind[y * 32 + x] = PIXEL_EXTRA_INK; b.deltaE[y * 32 + x] = b.score[y * 32 + x] = 20; }
+    const ink = new RegionCollector(32, 5, false), colour = new RegionCollector(32, 5, true);
+    ink.addBand(b, 20, 0);
+    colour.addBand(b, 20, 0);
     const { findings } = regionsToFindings([...ink.regions(), ...colour.regions()], rules);
-    expect(findings.map((f) => [f.kind, f.xMm, f.wMm])).toEqual([["colour_shift", 1.1, 1.1], ["extra_ink", 0.4, 0.2]]);
+    expect(findings.map((f) => [f.kind, f.xMm, f.wMm, f.hMm])).toEqual([["colour_shift", 1.1, 2.1, 2], ["extra_ink", 0.4, 0.2, 0.2]]);
   });
 
   it("calls a long thin region a streak by its second moments (a line of length L has σ = L / √12)", () => {
@@ -92,31 +92,51 @@ describe("regions to findings", () => {
     expect(upOf({ x: 12, y: 60, w: 1, h: 1 }, undefined, page)).toBeNull();
   });
 
-  it("reports a colour shift only from 1 mm² while a speck of ink may be smaller", () => {
+  it("reports a colour shift from 4 mm² (a 2 × 2 mm patch), or smaller when it peaks at 5 × the profile's ΔE00, while a speck of ink may be smaller", () => {
+    // 0.1 mm a pixel: 3 × 3 px (0.09 mm²) of colour at ΔE00 10, the same of extra ink, and of colour at ΔE00 20.
     const c = new RegionCollector(40, 5);
-    c.addBand(band(40, ["###", "###", "###"], PIXEL_COLOUR_SHIFT), 3, 0);
-    c.addBand(band(40, ["###", "###", "###"], PIXEL_EXTRA_INK), 3, 10);
-    const { findings } = regionsToFindings(c.regions(), { ...rules, minAreaMm2: 0.05 });
-    expect(findings.map((f) => f.kind)).toEqual(["extra_ink"]);
+    c.addBand(band(40, ["###.....................................", "###", "###"].map((r) => r.padEnd(40, ".")), PIXEL_COLOUR_SHIFT), 3, 0);
+    c.addBand(band(40, ["###", "###", "###"].map((r) => r.padEnd(40, ".")), PIXEL_EXTRA_INK), 3, 10);
+    c.addBand(band(40, ["###", "###", "###"].map((r) => r.padEnd(40, ".")), PIXEL_COLOUR_SHIFT, 20), 3, 20);
+    const { findings } = regionsToFindings(c.regions(), { ...rules, minAreaMm2: 0.05, peakDeltaE00: 4 });
+    expect(findings.map((f) => [f.kind, f.yMm])).toEqual([["extra_ink", 1], ["colour_shift", 2]]);
   });
 
   it("reports a colour shift by its mean against the profile's ΔE00, an ink speck by its peak", () => {
-    // Under a profile of ΔE00 4, three 20 × 20 px (2 × 2 mm) coherent colour regions, each with pixels over the
+    // Under a profile of ΔE00 4, three 20 × 21 px (2 × 2.1 mm) coherent colour regions, each with pixels over the
     // second level (5): columns of 2 and 5 (mean 3.5: within tolerance, dropped), of 3 and 5 (mean 4: kept) and 6.
     const row = "#".repeat(20) + ".".repeat(10) + "#".repeat(20) + ".".repeat(10) + "#".repeat(20);
-    const b = band(80, Array.from({ length: 20 }, () => row), PIXEL_COLOUR_SHIFT);
-    for (let y = 0; y < 20; y++) for (let x = 0; x < 80; x++) {
+    const b = band(80, Array.from({ length: 21 }, () => row), PIXEL_COLOUR_SHIFT);
+    for (let y = 0; y < 21; y++) for (let x = 0; x < 80; x++) {
       const i = y * 80 + x;
       if (b.deltaE[i] === 0) continue;
       b.deltaE[i] = b.score[i] = x % 2 === 0 && x < 50 ? 5 : x < 20 ? 2 : x < 50 ? 3 : 6;
       b.shift[i * 3 + 1] = 6;
     }
     const c = new RegionCollector(80, 5, true);
-    c.addBand(b, 20, 0);
-    const { findings } = regionsToFindings(c.regions(), { ...rules, pageMm: { widthMm: 8, heightMm: 2 }, peakDeltaE00: 4 });
+    c.addBand(b, 21, 0);
+    const { findings } = regionsToFindings(c.regions(), { ...rules, pageMm: { widthMm: 8, heightMm: 2.1 }, peakDeltaE00: 4 });
     expect(findings.map((f) => [f.kind, f.xMm, f.deltaE00Mean]).sort((a, b) => Number(a[1]) - Number(b[1]))).toEqual([
       ["colour_shift", 3, 4],
       ["colour_shift", 6, 6],
     ]);
+  });
+
+  it("joins regions whose own boxes come within the merge distance, not regions near the joined box's empty corner", () => {
+    // 0.1 mm a pixel, merge distance 1 mm (10 px). Spots A (x 13–15, y 0–2) and B (x 24–26, y 11–13) are within
+    // 10 px of each other: one finding. C (x 0–2, y 14–16) is 11 px below A and 21 px left of B, but within 10 px
+    // of the box around A and B: joining it through that box is how noise chained over a whole label.
+    const rows = Array.from({ length: 17 }, (_, y) => {
+      const row = [..." ".repeat(27)].map(() => ".");
+      const put = (x0: number) => { for (let x = x0; x < x0 + 3; x++) row[x] = "#"; };
+      if (y <= 2) put(13);
+      if (y >= 11 && y <= 13) put(24);
+      if (y >= 14) put(0);
+      return row.join("");
+    });
+    const c = new RegionCollector(27, 5);
+    c.addBand(band(27, rows), 17, 0);
+    const { findings } = regionsToFindings(c.regions(), { ...rules, mergeMm: 1, pageMm: { widthMm: 2.7, heightMm: 1.7 } });
+    expect(findings.map((f) => [f.xMm, f.yMm, f.wMm, f.hMm])).toEqual([[1.3, 0, 1.4, 1.4], [0, 1.4, 0.3, 0.3]]);
   });
 });

@@ -170,11 +170,19 @@ export class RegionCollector {
 }
 
 /**
- * Smallest colour shift reported, mm². Colour is judged over areas (a spectrophotometer's aperture is a few mm
- * across — from memory, 3–4 mm is usual); a sub-millimetre speck of hue alone is scan noise or JPEG chroma
- * blocking, while a speck of ink (extra or missing) keeps the profile's smaller minimum.
+ * Smallest colour shift reported, mm² (a 2 × 2 mm patch). Colour is judged over areas (a spectrophotometer's
+ * aperture is a few mm across — from memory, 3–4 mm is usual); a speck of hue alone is scan noise, JPEG chroma
+ * blocking, board mottle or a scrap of a picture's colour (at 1 mm², half the colour regions on the second
+ * simulator's clean training sheets were under 4 mm²), while a speck of ink (extra or missing) keeps the
+ * profile's smaller minimum.
  */
-const MIN_COLOUR_SHIFT_MM2 = 1;
+const MIN_COLOUR_SHIFT_MM2 = 4;
+/**
+ * A spot of colour under that area is still reported when it peaks at this many times the profile's ΔE00: a
+ * coloured pen dot or hickey, not a tint (three such spots of 1–1.3 mm were lost on the second simulator's
+ * training sheets when the area alone decided).
+ */
+const SPOT_PEAK_SHARE = 5;
 /**
  * A colour shift is a change of the ink's colour over an area, so its pixels' differences point one way: the
  * length of their mean vector is most of their mean length (0.9 and more on a reprinted or contaminated patch).
@@ -229,7 +237,7 @@ export function regionsToFindings(regions: Region[], rules: FindingRules): { fin
   const merged = mergeNearby([...strong, ...glyphs], gapPx);
   const pxArea = (25.4 / rules.dpi) ** 2;
   const kept = merged
-    .filter((r) => r.count * pxArea >= (kindOf(r.votes) === "colour_shift" ? Math.max(rules.minAreaMm2, MIN_COLOUR_SHIFT_MM2) : rules.minAreaMm2))
+    .filter((r) => r.count * pxArea >= (kindOf(r.votes) === "colour_shift" && !(rules.peakDeltaE00 !== undefined && r.maxDeltaE >= SPOT_PEAK_SHARE * rules.peakDeltaE00) ? Math.max(rules.minAreaMm2, MIN_COLOUR_SHIFT_MM2) : rules.minAreaMm2))
     .filter((r) => rules.peakDeltaE00 === undefined || kindOf(r.votes) === "colour_shift" || r.maxDeltaE >= INK_PEAK_SHARE * rules.peakDeltaE00)
     .filter((r) => rules.peakDeltaE00 === undefined || kindOf(r.votes) !== "colour_shift" || r.sumDeltaE / r.count >= COLOUR_MEAN_SHARE * rules.peakDeltaE00)
     .sort((a, b) => b.count - a.count);
@@ -308,32 +316,47 @@ function kindOf(votes: [number, number, number]): FindingKind {
 
 /** Merges regions whose boxes come within `gapPx` of each other, until none do. */
 function mergeNearby(regions: Region[], gapPx: number): Region[] {
-  const out = regions.map((r) => ({ ...r, votes: [...r.votes] as [number, number, number], structural: [...r.structural] as [number, number], shiftSum: [...r.shiftSum] as [number, number, number], moments: [...r.moments] as Region["moments"] }));
-  let changed = true;
-  while (changed) {
-    changed = false;
-    for (let i = 0; i < out.length; i++) {
-      for (let j = i + 1; j < out.length; j++) {
-        const a = out[i], b = out[j];
-        if (a.x0 - gapPx > b.x1 || b.x0 - gapPx > a.x1 || a.y0 - gapPx > b.y1 || b.y0 - gapPx > a.y1) continue;
-        a.x0 = Math.min(a.x0, b.x0); a.y0 = Math.min(a.y0, b.y0);
-        a.x1 = Math.max(a.x1, b.x1); a.y1 = Math.max(a.y1, b.y1);
-        a.count += b.count; a.sumDeltaE += b.sumDeltaE; a.maxDeltaE = Math.max(a.maxDeltaE, b.maxDeltaE); a.maxScore = Math.max(a.maxScore, b.maxScore); a.strongCount += b.strongCount;
-        for (let k = 0; k < 3; k++) a.votes[k] += b.votes[k];
-        a.structural[0] += b.structural[0];
-        a.structural[1] += b.structural[1];
-        for (let k = 0; k < 3; k++) a.shiftSum[k] += b.shiftSum[k];
-        a.shiftLength += b.shiftLength;
-        a.onLinework += b.onLinework;
-        for (let k = 0; k < 5; k++) a.moments[k] += b.moments[k];
-        out.splice(j, 1);
-        j--;
-        changed = true;
-      }
+  // Single linkage on the regions' own boxes (union–find): two regions join when their boxes come within the
+  // gap. Testing against a merged region's growing box instead made the box itself the bridge: its empty
+  // corners reached regions near no member, and noise chained into a box over a whole label.
+  const n = regions.length;
+  const parent = Int32Array.from({ length: n }, (_, i) => i);
+  const find = (i: number): number => {
+    while (parent[i] !== i) i = parent[i] = parent[parent[i]];
+    return i;
+  };
+  const order = regions.map((_, i) => i).sort((a, b) => regions[a].x0 - regions[b].x0);
+  for (let oi = 0; oi < n; oi++) {
+    const a = regions[order[oi]];
+    for (let oj = oi + 1; oj < n; oj++) {
+      const b = regions[order[oj]];
+      if (b.x0 - gapPx > a.x1) break; // sorted by x0: no later region can come nearer in x
+      if (a.x0 - gapPx > b.x1 || a.y0 - gapPx > b.y1 || b.y0 - gapPx > a.y1) continue;
+      parent[find(order[oi])] = find(order[oj]);
     }
   }
-  return out;
+  const byRoot = new Map<number, Region>();
+  for (let i = 0; i < n; i++) {
+    const b = regions[i], root = find(i);
+    const a = byRoot.get(root);
+    if (!a) {
+      byRoot.set(root, { ...b, votes: [...b.votes] as [number, number, number], structural: [...b.structural] as [number, number], shiftSum: [...b.shiftSum] as [number, number, number], moments: [...b.moments] as Region["moments"] });
+      continue;
+    }
+    a.x0 = Math.min(a.x0, b.x0); a.y0 = Math.min(a.y0, b.y0);
+    a.x1 = Math.max(a.x1, b.x1); a.y1 = Math.max(a.y1, b.y1);
+    a.count += b.count; a.sumDeltaE += b.sumDeltaE; a.maxDeltaE = Math.max(a.maxDeltaE, b.maxDeltaE); a.maxScore = Math.max(a.maxScore, b.maxScore); a.strongCount += b.strongCount;
+    for (let k = 0; k < 3; k++) a.votes[k] += b.votes[k];
+    a.structural[0] += b.structural[0];
+    a.structural[1] += b.structural[1];
+    for (let k = 0; k < 3; k++) a.shiftSum[k] += b.shiftSum[k];
+    a.shiftLength += b.shiftLength;
+    a.onLinework += b.onLinework;
+    for (let k = 0; k < 5; k++) a.moments[k] += b.moments[k];
+  }
+  return [...byRoot.values()];
 }
+
 
 /** 1-based row-major up containing the box centre; null outside the ups' area or without a layout. */
 export function upOf(box: RectMm, ups: UpsLayout | undefined, page: { widthMm: number; heightMm: number }): number | null {
