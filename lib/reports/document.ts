@@ -9,7 +9,8 @@ import { PDFDocument, rgb, type PDFFont, type PDFImage, type PDFPage, type RGB }
 
 const FONT_DIR = path.join(process.cwd(), "node_modules", "dejavu-fonts-ttf", "ttf");
 let fontBytes: Promise<[Buffer, Buffer]> | null = null;
-const loadFonts = () => (fontBytes ??= Promise.all([readFile(path.join(FONT_DIR, "DejaVuSans.ttf")), readFile(path.join(FONT_DIR, "DejaVuSans-Bold.ttf"))]));
+/** DejaVu Sans regular and bold as shipped with the app, read once. */
+export const loadFonts = () => (fontBytes ??= Promise.all([readFile(path.join(FONT_DIR, "DejaVuSans.ttf")), readFile(path.join(FONT_DIR, "DejaVuSans-Bold.ttf"))]));
 
 export const A4 = { width: 595.28, height: 841.89 };
 export const MARGIN = 42;

@@ -7,7 +7,7 @@ import path from "node:path";
 import { chromium, type BrowserContext, type Page } from "playwright-core";
 import { closeDb } from "../../db/client";
 import { env } from "../../lib/env";
-import { startWorker, type WorkerProcess } from "../pipeline/support/worker-process";
+import { startWorker } from "../pipeline/support/worker-process";
 
 export const APP_URL = env.APP_URL;
 
@@ -75,13 +75,12 @@ export async function shootAndCheck(page: Page, name: string): Promise<string[]>
 }
 
 /** The real worker and a browser for a story through the app; `close` stops both and the test's database pool. */
-export async function openWithWorker(): Promise<{ context: BrowserContext; worker: WorkerProcess; close: () => Promise<void> }> {
+export async function openWithWorker(): Promise<{ context: BrowserContext; close: () => Promise<void> }> {
   const worker = startWorker();
   await worker.waitFor(/worker ready/);
   const browser = await openBrowser();
   return {
     context: browser.context,
-    worker,
     close: async () => {
       await browser.close();
       await worker.stop("SIGTERM");
@@ -89,4 +88,3 @@ export async function openWithWorker(): Promise<{ context: BrowserContext; worke
     },
   };
 }
-

@@ -1,11 +1,10 @@
 // Test artwork: an invented folding-carton press sheet ("Brindlewood Tea Co.", a fictional brand) as a PDF,
 // rows × columns of identical ups, plus the layout in millimetres so tests know where every element and
 // every planted defect lies. Coordinates: mm from the top-left of the trim box, x right, y down.
-import { readFile } from "node:fs/promises";
-import path from "node:path";
 import fontkit from "@pdf-lib/fontkit";
 import { PDFDocument, StandardFonts, rgb, type PDFFont, type PDFPage, type RGB } from "pdf-lib";
 import type { RectMm, UpsLayout } from "@/lib/imaging/types";
+import { loadFonts } from "../../lib/reports/document";
 
 /** PDF user space unit is 1/72 inch (ISO 32000-1, 8.3.2.3). */
 export const PT_PER_MM = 72 / 25.4;
@@ -117,9 +116,9 @@ export async function makeCartonPdf(opts: CartonOptions = {}): Promise<{ pdf: Ui
   let font: PDFFont, bold: PDFFont;
   if (embedFonts) {
     doc.registerFontkit(fontkit);
-    const dir = path.join(process.cwd(), "node_modules", "dejavu-fonts-ttf", "ttf");
-    font = await doc.embedFont(await readFile(path.join(dir, "DejaVuSans.ttf")), { subset: true });
-    bold = await doc.embedFont(await readFile(path.join(dir, "DejaVuSans-Bold.ttf")), { subset: true });
+    const [regular, heavy] = await loadFonts();
+    font = await doc.embedFont(regular, { subset: true });
+    bold = await doc.embedFont(heavy, { subset: true });
   } else {
     font = await doc.embedFont(StandardFonts.Helvetica);
     bold = await doc.embedFont(StandardFonts.HelveticaBold);

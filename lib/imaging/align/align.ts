@@ -127,8 +127,10 @@ export async function alignScan(artwork: ArtworkRaster, scan: ScanImage, opts: A
         ({ map: eccMap, rho } = fit);
       } else runnerRho = Math.max(runnerRho, fit.rho);
     }
+    lap("ecc");
     if (!(rho >= MIN_CORRELATION)) throw mismatch();
     const refined = refineOnPatches(cv, artwork, scan, eccMap);
+    lap("patches");
     if (refined.agreement !== null && refined.agreement < MIN_AGREEMENT) throw mismatch();
     return { rho, runnerRho, refined };
   };
@@ -145,7 +147,6 @@ export async function alignScan(artwork: ArtworkRaster, scan: ScanImage, opts: A
   }
   const { rho, runnerRho, refined } = placed;
   map = refined.map;
-  lap("ecc");
   // Only a scan that matches is worth this question: it fits, but would it fit elsewhere as well?
   if (runnerRho > rho - AMBIGUITY_RHO_GAP) {
     throw new ImagingError("scan_ambiguous", "the scan shows only repeated parts of the sheet and cannot be placed; include a sheet edge or margin in the scan");

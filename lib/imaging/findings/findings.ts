@@ -236,11 +236,14 @@ export function regionsToFindings(regions: Region[], rules: FindingRules): { fin
     .filter((r) => r.strongCount >= rules.minStrongPx && r.structural[0] + r.structural[1] >= structuralPx && ((r.structural[0] >= 1 && r.structural[1] >= 1) || r.strongCount >= structuralPx));
   const merged = mergeNearby([...strong, ...glyphs], gapPx);
   const pxArea = (25.4 / rules.dpi) ** 2;
-  const kept = merged
-    .filter((r) => r.count * pxArea >= (kindOf(r.votes) === "colour_shift" && !(rules.peakDeltaE00 !== undefined && r.maxDeltaE >= SPOT_PEAK_SHARE * rules.peakDeltaE00) ? Math.max(rules.minAreaMm2, MIN_COLOUR_SHIFT_MM2) : rules.minAreaMm2))
-    .filter((r) => rules.peakDeltaE00 === undefined || kindOf(r.votes) === "colour_shift" || r.maxDeltaE >= INK_PEAK_SHARE * rules.peakDeltaE00)
-    .filter((r) => rules.peakDeltaE00 === undefined || kindOf(r.votes) !== "colour_shift" || r.sumDeltaE / r.count >= COLOUR_MEAN_SHARE * rules.peakDeltaE00)
-    .sort((a, b) => b.count - a.count);
+  const peak = rules.peakDeltaE00;
+  const keeps = (r: Region): boolean => {
+    const areaMm2 = r.count * pxArea;
+    if (kindOf(r.votes) !== "colour_shift") return areaMm2 >= rules.minAreaMm2 && (peak === undefined || r.maxDeltaE >= INK_PEAK_SHARE * peak);
+    const spot = peak !== undefined && r.maxDeltaE >= SPOT_PEAK_SHARE * peak;
+    return areaMm2 >= (spot ? rules.minAreaMm2 : Math.max(rules.minAreaMm2, MIN_COLOUR_SHIFT_MM2)) && (peak === undefined || r.sumDeltaE / r.count >= COLOUR_MEAN_SHARE * peak);
+  };
+  const kept = merged.filter(keeps).sort((a, b) => b.count - a.count);
   const findings = kept.map((r): Finding => {
     const box: RectMm = {
       x: pxToMm(r.x0, rules.dpi),
@@ -314,7 +317,7 @@ function kindOf(votes: [number, number, number]): FindingKind {
   return extra >= missing ? "extra_ink" : "missing_ink";
 }
 
-/** Merges regions whose boxes come within `gapPx` of each other, until none do. */
+/** Joins regions whose own boxes come within `gapPx` of each other, directly or through other regions. */
 function mergeNearby(regions: Region[], gapPx: number): Region[] {
   // Single linkage on the regions' own boxes (union–find): two regions join when their boxes come within the
   // gap. Testing against a merged region's growing box instead made the box itself the bridge: its empty
@@ -356,7 +359,6 @@ function mergeNearby(regions: Region[], gapPx: number): Region[] {
   }
   return [...byRoot.values()];
 }
-
 
 /** 1-based row-major up containing the box centre; null outside the ups' area or without a layout. */
 export function upOf(box: RectMm, ups: UpsLayout | undefined, page: { widthMm: number; heightMm: number }): number | null {
