@@ -14,6 +14,7 @@ export const loadFonts = () => (fontBytes ??= Promise.all([readFile(path.join(FO
 
 export const A4 = { width: 595.28, height: 841.89 };
 export const MARGIN = 42;
+export const FIELD_LABEL_WIDTH = 110;
 export const colours = {
   ink: rgb(0.11, 0.14, 0.19),
   muted: rgb(0.36, 0.4, 0.45),
@@ -133,8 +134,12 @@ export class ReportDocument {
     this.y -= points;
   }
 
-  /** Label–value lines, labels in a narrow muted column. */
-  fields(rows: [string, string][], labelWidth = 130) {
+  /**
+   * Label–value lines, labels in a narrow muted column. 110 pt holds the longest label (about 85 pt) and leaves
+   * the values 401 pt: a sha256 (64 hex digits, at most 387 pt at 9.5 pt) stays on one line, so it can be read
+   * and searched whole (at 130 pt some hashes lost their last digit to a second line).
+   */
+  fields(rows: [string, string][], labelWidth = FIELD_LABEL_WIDTH) {
     for (const [label, value] of rows) {
       const lines = this.wrap(value, this.contentWidth - labelWidth, {});
       this.need(lines.length * 12.8);
