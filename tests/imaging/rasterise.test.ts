@@ -1,6 +1,6 @@
 import { PDFDocument, PDFHexString, PDFName, PDFNumber, rgb } from "pdf-lib";
 import { describe, expect, it } from "vitest";
-import { artworkAtDpi, rasterisePage, readPdfPages } from "@/lib/imaging/rasterise/rasterise";
+import { artworkAtDpi, averageDown, rasterisePage, readPdfPages } from "@/lib/imaging/rasterise/rasterise";
 import { ImagingError, type RgbaImage } from "@/lib/imaging/types";
 import { makeCartonPdf, PT_PER_MM } from "../support/carton";
 
@@ -212,5 +212,31 @@ describe("bad input", () => {
     await rasterisePage(pdf, { dpi: 72 });
     expect(pdf.byteLength).toBe(copy.byteLength);
     expect(Buffer.compare(Buffer.from(pdf), Buffer.from(copy))).toBe(0);
+  });
+
+  it("prints two shapes that meet without a light seam between them, and averages blocks exactly", async () => {
+    // Two black rectangles meeting at x = 50.13 mm, a fraction of a pixel at 100 dpi. Painted one over the other
+    // with coverage α each, "over" compositing (Porter & Duff, Compositing Digital Images, 1984) leaves the
+    // white showing through by (1 − α)·α′ at the shared edge: up to a quarter of the contrast at α = ½.
+    const doc = await PDFDocument.create();
+    const page = doc.addPage(A4_PT);
+    const split = 50.13, top = 100, h = 20;
+    for (const [x, w] of [[30, split - 30], [split, 30]]) {
+      page.drawRectangle({ x: x * PT_PER_MM, y: A4_PT[1] - (top + h) * PT_PER_MM, width: w * PT_PER_MM, height: h * PT_PER_MM, color: rgb(0, 0, 0) });
+    }
+    const pdf = await doc.save();
+    const seamPeak = (img: RgbaImage & { dpi: number }) => {
+      const y = Math.round(((top + h / 2) * img.dpi) / 25.4), x = Math.floor((split * img.dpi) / 25.4);
+      return Math.max(...[-1, 0, 1].map((dx) => img.data[(y * img.width + x + dx) * 4]));
+    };
+    const plain = await rasterisePage(pdf, { dpi: 100, supersample: 1 });
+    const supersampled = await rasterisePage(pdf, { dpi: 100 });
+    expect(seamPeak(plain)).toBeGreaterThan(20); // pdf.js's own seam, for the record
+    expect(seamPeak(supersampled)).toBeLessThan(seamPeak(plain) / 2);
+    expect(supersampled.width).toBe(plain.width);
+    // Block means by hand: a 2 × 2 block of 0, 10, 20, 31 averages to 15.25 → 15.
+    const src = new Uint8Array(4 * 4);
+    [0, 10, 20, 31].forEach((v, i) => src.fill(v, i * 4, i * 4 + 4));
+    expect([...averageDown(src, 1, 1, 2)]).toEqual([15, 15, 15, 15]);
   });
 });

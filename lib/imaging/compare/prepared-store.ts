@@ -11,10 +11,10 @@ import { BLEED_PX, CACHE_MAX_PIXELS, preparePageRows, prepareLowPassed, type Con
 import type { RgbaImage } from "../types";
 
 /**
- * Bump whenever the preparation's arithmetic changes (blur, low-pass, contrast windows): objects of another
- * version are prepared again instead of being misread.
+ * Bump whenever the preparation's arithmetic changes (the artwork's rendering, blur, low-pass, contrast
+ * windows): objects of another version are prepared again instead of being misread. 2: supersampled rendering.
  */
-export const PREPARATION_VERSION = 1;
+export const PREPARATION_VERSION = 2;
 const MAGIC = "TYMPREP1";
 const CHUNK_ROWS = 256;
 
