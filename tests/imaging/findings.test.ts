@@ -92,14 +92,18 @@ describe("regions to findings", () => {
     expect(upOf({ x: 12, y: 60, w: 1, h: 1 }, undefined, page)).toBeNull();
   });
 
-  it("reports a colour shift from 4 mm² (a 2 × 2 mm patch), or smaller when it peaks at 5 × the profile's ΔE00, while a speck of ink may be smaller", () => {
+  it("reports a colour shift from 4 mm² (a 2 × 2 mm patch), a smaller colour spot only when it peaks at 5 × the profile's ΔE00 (as ink), while a speck of ink may be smaller", () => {
     // 0.1 mm a pixel: 3 × 3 px (0.09 mm²) of colour at ΔE00 10, the same of extra ink, and of colour at ΔE00 20.
     const c = new RegionCollector(40, 5);
     c.addBand(band(40, ["###.....................................", "###", "###"].map((r) => r.padEnd(40, ".")), PIXEL_COLOUR_SHIFT), 3, 0);
     c.addBand(band(40, ["###", "###", "###"].map((r) => r.padEnd(40, ".")), PIXEL_EXTRA_INK), 3, 10);
-    c.addBand(band(40, ["###", "###", "###"].map((r) => r.padEnd(40, ".")), PIXEL_COLOUR_SHIFT, 20), 3, 20);
+    // The strong spot is darker than the artwork (L* −10): reported as a spot of ink, not as a colour shift,
+    // which needs an area (a dot of pen ink).
+    const spot = band(40, ["###", "###", "###"].map((r) => r.padEnd(40, ".")), PIXEL_COLOUR_SHIFT, 20);
+    for (let i = 0; i < spot.deltaE.length; i++) if (spot.deltaE[i] > 0) spot.shift[i * 3] = -10;
+    c.addBand(spot, 3, 20);
     const { findings } = regionsToFindings(c.regions(), { ...rules, minAreaMm2: 0.05, peakDeltaE00: 4 });
-    expect(findings.map((f) => [f.kind, f.yMm])).toEqual([["extra_ink", 1], ["colour_shift", 2]]);
+    expect(findings.map((f) => [f.kind, f.yMm])).toEqual([["extra_ink", 1], ["extra_ink", 2]]);
   });
 
   it("reports a colour shift by its mean against the profile's ΔE00, an ink speck by its peak", () => {
@@ -138,5 +142,47 @@ describe("regions to findings", () => {
     c.addBand(band(27, rows), 17, 0);
     const { findings } = regionsToFindings(c.regions(), { ...rules, mergeMm: 1, pageMm: { widthMm: 2.7, heightMm: 1.7 } });
     expect(findings.map((f) => [f.xMm, f.yMm, f.wMm, f.hMm])).toEqual([[1.3, 0, 1.4, 1.4], [0, 1.4, 0.3, 0.3]]);
+  });
+
+  it("keeps a speck of ink beside a large colour shift as its own tight finding, but joins an ink and a colour region of like size", () => {
+    // 0.1 mm a pixel, merge distance 0.5 mm (5 px). A coherent colour patch of 30 × 20 px (600 px, +8 b*) and,
+    // 3 px to its right, a 2 × 2 px speck of extra ink (4 px, 150 × smaller): two findings, the speck's box its
+    // own 0.2 × 0.2 mm. Below, a 6 × 6 px colour patch and a 4 × 4 px ink spot 3 px apart (36 and 16 px, within
+    // 10 ×): one finding over both.
+    const w = 40, rows = Array.from({ length: 40 }, (_, y) => {
+      const row = [...".".repeat(w)];
+      if (y < 20) for (let x = 0; x < 30; x++) row[x] = "c";
+      if (y >= 4 && y < 6) for (let x = 33; x < 35; x++) row[x] = "i";
+      if (y >= 30 && y < 36) for (let x = 0; x < 6; x++) row[x] = "c";
+      if (y >= 30 && y < 34) for (let x = 9; x < 13; x++) row[x] = "i";
+      return row.join("");
+    });
+    const b = band(w, rows.map((r) => r.replace(/[ci]/g, "#")), PIXEL_COLOUR_SHIFT, 8);
+    rows.forEach((r, y) => [...r].forEach((ch, x) => {
+      const i = y * w + x;
+      if (ch === "c") b.shift[i * 3 + 2] = 8;
+      if (ch === "i") { b.kind[i] = PIXEL_EXTRA_INK; b.deltaE[i] = b.score[i] = 20; }
+    }));
+    const ink = new RegionCollector(w, 5, false), colour = new RegionCollector(w, 5, true);
+    ink.addBand(b, 40, 0);
+    colour.addBand(b, 40, 0);
+    const { findings } = regionsToFindings([...ink.regions(), ...colour.regions()], { ...rules, mergeMm: 0.5, pageMm: { widthMm: 4, heightMm: 4 } });
+    expect(findings.map((f) => [f.kind, f.xMm, f.yMm, f.wMm, f.hMm])).toEqual([
+      ["colour_shift", 0, 0, 3, 2],
+      ["extra_ink", 0, 3, 1.3, 0.6], // by the ΔE-weighted vote: ink 16 px × 20 over colour 36 px × 8
+      ["extra_ink", 3.3, 0.4, 0.2, 0.2],
+    ]);
+  });
+
+  it("calls a lighter or darker patch of a few ΔE00 over 4 mm² a colour shift, and a patch of the whole ink missing ink", () => {
+    // 0.1 mm a pixel: 30 × 20 px = 6 mm² of missing-ink pixels, once at ΔE00 8 (a tint printed light) and once
+    // at ΔE00 30 (ink gone down to the board).
+    const rows = Array.from({ length: 20 }, () => "#".repeat(30));
+    const kinds = [8, 30].map((e) => {
+      const c = new RegionCollector(30, 4);
+      c.addBand(band(30, rows, PIXEL_MISSING_INK, e), 20, 0);
+      return regionsToFindings(c.regions(), { ...rules, peakDeltaE00: 4, pageMm: { widthMm: 3, heightMm: 2 } }).findings.map((f) => f.kind);
+    });
+    expect(kinds).toEqual([["colour_shift"], ["missing_ink"]]);
   });
 });

@@ -17,7 +17,7 @@ const gain = (x: number, y: number) => {
 /** Flat pairs on a grid: artwork tints, the scan the same tints under `gain`; `spoilt` of them a dark blot. */
 function pairs(spoilt = 0): SamplePairs {
   const n = 40 * 28;
-  const p: SamplePairs = { flatArt: new Float32Array(n * 3), flatScan: new Float32Array(n * 3), flatPos: new Float32Array(n * 2), flatCount: n, allArt: new Float32Array(0), allScan: new Float32Array(0), allCount: 0 };
+  const p: SamplePairs = { flatArt: new Float32Array(n * 3), flatScan: new Float32Array(n * 3), flatPos: new Float32Array(n * 2), flatCount: n, allArt: new Float32Array(0), allScan: new Float32Array(0), allCount: 0, smoothArt: new Float32Array(0), smoothScan: new Float32Array(0), smoothCount: 0 };
   const tints = [[250, 248, 240], [230, 200, 160], [180, 210, 235]];
   for (let i = 0; i < n; i++) {
     const x = ((i % 40) + 0.5) * (W / 40), y = (Math.floor(i / 40) + 0.5) * (H / 28);

@@ -19,6 +19,14 @@ const KERNEL_SIGMA = 10;
 const KERNEL_FLOOR = 0.02;
 const REFINE_ROUNDS = 3;
 const MIN_GROUP = 6;
+/** A smooth-area colour farther than this (8-bit, any channel) from every flat colour is a hole (holeGroups). */
+const HOLE_DISTANCE = 12;
+/**
+ * Kernel width of a hole's correction: narrower than a flat colour's, since a press's tint can scan close to
+ * an unrelated colour (a sky's cyan tint scanned within 20–30 codes of the grey of a barcode's bars on the
+ * second simulator, and a wide kernel turned those greys cyan).
+ */
+const HOLE_KERNEL_SIGMA = 5;
 /** Largest spread of an artwork colour's channels (8-bit) that still counts as neutral. */
 const NEUTRAL_SPREAD = 12;
 const TONE_BIN = 8;
@@ -109,7 +117,7 @@ export function evaluateModel(model: ColourModel, r: number, g: number, b: numbe
 }
 
 export function fitColourModel(pairs: SamplePairs): ColourModel {
-  const groups = groupByArtwork(pairs);
+  const groups = groupByArtwork(pairs.flatArt, pairs.flatScan, pairs.flatCount);
   const curves = [0, 1, 2].map((c) => fitToneCurve(groups, pairs, c));
   const curved = (r: number, g: number, b: number) => [interp(curves[0], r), interp(curves[1], g), interp(curves[2], b)];
   const points = groups.map((gr) => ({ x: curved(gr.scan[0], gr.scan[1], gr.scan[2]).map((v) => v / 255), y: gr.art.map((v) => v / 255) }));
@@ -120,25 +128,30 @@ export function fitColourModel(pairs: SamplePairs): ColourModel {
   // by a Gaussian kernel and fading to nothing away from the sheet's colours; a few rounds, since neighbouring
   // colours' kernels overlap.
   const reach = Math.ceil((3 * KERNEL_SIGMA) / STEP);
+  // Gradients' and pictures' colours that no flat area has add local corrections of their own (not tone curves
+  // or the polynomial, which the flat colours fix as before).
+  const holes = holeGroups(pairs, groups);
+  const local = [...groups, ...holes];
   // The Gaussian kernel is separable: one weight per node along each axis, the same in every round.
-  const kernels = groups.map((gr) =>
-    gr.scan.map((v) => {
+  const kernels = local.map((gr, gi) => {
+    const sigma = gi < groups.length ? KERNEL_SIGMA : HOLE_KERNEL_SIGMA;
+    return gr.scan.map((v) => {
       const centre = Math.round(v / STEP);
       const from = Math.max(0, centre - reach), to = Math.min(LUT_SIZE - 1, centre + reach);
-      return { from, w: Float64Array.from({ length: to - from + 1 }, (_, k) => Math.exp(-(((from + k) * STEP - v) ** 2) / (2 * KERNEL_SIGMA * KERNEL_SIGMA))) };
-    }),
-  );
+      return { from, w: Float64Array.from({ length: to - from + 1 }, (_, k) => Math.exp(-(((from + k) * STEP - v) ** 2) / (2 * sigma * sigma))) };
+    });
+  });
   const den = new Float64Array(LUT_SIZE ** 3);
-  for (let gi = 0; gi < groups.length; gi++) spreadGroup(kernels[gi], den, null, gi);
+  for (let gi = 0; gi < local.length; gi++) spreadGroup(kernels[gi], den, null, gi);
   const num = new Float64Array(LUT_SIZE ** 3 * 3);
-  const res = new Float64Array(groups.length * 3);
+  const res = new Float64Array(local.length * 3);
   for (let round = 0; round < REFINE_ROUNDS; round++) {
-    groups.forEach((gr, gi) => {
+    local.forEach((gr, gi) => {
       const predicted = interpolate(lut, gr.scan[0], gr.scan[1], gr.scan[2]);
       for (let c = 0; c < 3; c++) res[gi * 3 + c] = gr.art[c] - predicted[c];
     });
     num.fill(0);
-    for (let gi = 0; gi < groups.length; gi++) spreadGroup(kernels[gi], num, res, gi);
+    for (let gi = 0; gi < local.length; gi++) spreadGroup(kernels[gi], num, res, gi);
     addCorrections(lut, num, den);
   }
   for (let i = 0; i < lut.length; i++) lut[i] = Math.min(255, Math.max(0, lut[i]));
@@ -207,9 +220,18 @@ interface ColourGroup {
   count: number;
 }
 
-/** Flat samples grouped by artwork colour (6 bits a channel); each group's scan colour is its median. */
-function groupByArtwork(pairs: SamplePairs): ColourGroup[] {
-  const n = pairs.flatCount, a = pairs.flatArt;
+/**
+ * Smooth-area groups whose artwork colour lies farther than HOLE_DISTANCE from every flat group's: the holes in
+ * the flat colours' coverage. Near a flat colour the flat group, measured without misregistration, decides.
+ */
+function holeGroups(pairs: SamplePairs, flat: ColourGroup[]): ColourGroup[] {
+  const far = (g: ColourGroup) => flat.every((f) => Math.max(...[0, 1, 2].map((c) => Math.abs(f.art[c] - g.art[c]))) > HOLE_DISTANCE);
+  return groupByArtwork(pairs.smoothArt, pairs.smoothScan, pairs.smoothCount).filter(far);
+}
+
+/** Samples grouped by artwork colour (6 bits a channel); each group's scan colour is its median. */
+function groupByArtwork(art: Float32Array, scanValues: Float32Array, n: number): ColourGroup[] {
+  const a = art;
   // Counting sort of the samples by key: each group's members end up next to each other.
   const keys = new Int32Array(n);
   const starts = new Int32Array((1 << 18) + 1);
@@ -227,8 +249,8 @@ function groupByArtwork(pairs: SamplePairs): ColourGroup[] {
     if (to - from < MIN_GROUP) continue;
     const art = [0, 0, 0], scan = [0, 0, 0];
     for (let c = 0; c < 3; c++) {
-      art[c] = groupMedian(pairs.flatArt, order, from, to, c, values);
-      scan[c] = groupMedian(pairs.flatScan, order, from, to, c, values);
+      art[c] = groupMedian(a, order, from, to, c, values);
+      scan[c] = groupMedian(scanValues, order, from, to, c, values);
     }
     groups.push({ art, scan, count: to - from });
   }

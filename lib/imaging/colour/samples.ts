@@ -17,11 +17,22 @@ export interface SamplePairs {
   allArt: Float32Array;
   allScan: Float32Array;
   allCount: number;
+  /** Window means of both where the artwork is smooth but not flat (gradients, pictures): see SMOOTH_TOLERANCE. */
+  smoothArt: Float32Array;
+  smoothScan: Float32Array;
+  smoothCount: number;
 }
 
 const TARGET_GRID_POINTS = 60_000;
 /** A flat artwork window varies by at most this many 8-bit codes per channel. */
 const FLAT_TOLERANCE = 2;
+/**
+ * A smooth artwork window varies by at most this many codes: a gradient or a soft picture, whose colours may
+ * appear nowhere flat on the sheet. Their window means pair well (a small misregistration moves the mean of a
+ * smooth window little), and without them the colour model guesses those colours: a sky gradient printed in
+ * every up of a multi-up sheet came out ΔE00 9 off, one colour-shift finding an up, on the second simulator.
+ */
+const SMOOTH_TOLERANCE = 8;
 
 /** The artwork's side of the sampling grid: positions, window means and flatness. Artwork-only, so kept per artwork. */
 interface ArtworkGrid {
@@ -30,6 +41,7 @@ interface ArtworkGrid {
   /** Window mean (3 a point) and, for flat points, the pixel itself (3 a point). */
   mean: Float32Array;
   pixel: Float32Array;
+  /** FLAT, SMOOTH or 0. */
   flat: Uint8Array;
   count: number;
 }
@@ -56,7 +68,7 @@ function makeGrid(artwork: RgbaImage, radiusPx: number): ArtworkGrid {
       windowMean(art, aw, x, y, kArt, grid.mean, i * 3);
       const p = (y * aw + x) * 4;
       grid.pixel[i * 3] = art[p]; grid.pixel[i * 3 + 1] = art[p + 1]; grid.pixel[i * 3 + 2] = art[p + 2];
-      grid.flat[i] = isFlat(art, aw, x, y, r) ? 1 : 0;
+      grid.flat[i] = flatness(art, aw, x, y, r);
     }
   }
   return grid;
@@ -89,7 +101,8 @@ export function sampleFlatPairs(
   const cap = grid.count;
   const flatArt = new Float32Array(cap * 3), flatScan = new Float32Array(cap * 3), flatPos = new Float32Array(cap * 2);
   const allArt = new Float32Array(cap * 3), allScan = new Float32Array(cap * 3);
-  let flatCount = 0, allCount = 0;
+  const smoothArt = new Float32Array(cap * 3), smoothScan = new Float32Array(cap * 3);
+  let flatCount = 0, allCount = 0, smoothCount = 0;
   const sd = scan.data, sw = scan.width, sh = scan.height;
   const scale = Math.sqrt(Math.abs(m[0] * m[4] - m[1] * m[3]));
   const kScan = Math.max(1, Math.round(Math.max(1, Math.round(radiusPx / 3)) * scale));
@@ -103,24 +116,32 @@ export function sampleFlatPairs(
     allArt[a] = grid.mean[i * 3]; allArt[a + 1] = grid.mean[i * 3 + 1]; allArt[a + 2] = grid.mean[i * 3 + 2];
     windowMean(sd, sw, xs, ys, kScan, allScan, a);
     allCount++;
-    if (grid.flat[i] === 0) continue;
+    if (grid.flat[i] === SMOOTH) {
+      smoothArt.set(allArt.subarray(a, a + 3), smoothCount * 3);
+      smoothScan.set(allScan.subarray(a, a + 3), smoothCount * 3);
+      smoothCount++;
+    }
+    if (grid.flat[i] !== FLAT) continue;
     flatArt[f] = grid.pixel[i * 3]; flatArt[f + 1] = grid.pixel[i * 3 + 1]; flatArt[f + 2] = grid.pixel[i * 3 + 2];
     flatScan[f] = allScan[a]; flatScan[f + 1] = allScan[a + 1]; flatScan[f + 2] = allScan[a + 2];
     flatPos[flatCount * 2] = x; flatPos[flatCount * 2 + 1] = y;
     flatCount++;
   }
-  return { flatArt, flatScan, flatPos, flatCount, allArt, allScan, allCount };
+  return { flatArt, flatScan, flatPos, flatCount, allArt, allScan, allCount, smoothArt, smoothScan, smoothCount };
 }
 
-function isFlat(art: Uint8Array | Uint8ClampedArray, width: number, cx: number, cy: number, r: number): boolean {
+const FLAT = 1, SMOOTH = 2;
+
+/** FLAT when the window around (cx, cy) stays within FLAT_TOLERANCE of its centre, SMOOTH within SMOOTH_TOLERANCE, else 0. */
+function flatness(art: Uint8Array | Uint8ClampedArray, width: number, cx: number, cy: number, r: number): number {
   const c = (cy * width + cx) * 4;
   const r0 = art[c], g0 = art[c + 1], b0 = art[c + 2];
+  let most = 0;
   for (let yy = cy - r; yy <= cy + r; yy++) {
     for (let xx = cx - r, p = (yy * width + xx) * 4; xx <= cx + r; xx++, p += 4) {
-      if (Math.abs(art[p] - r0) > FLAT_TOLERANCE || Math.abs(art[p + 1] - g0) > FLAT_TOLERANCE || Math.abs(art[p + 2] - b0) > FLAT_TOLERANCE) {
-        return false;
-      }
+      most = Math.max(most, Math.abs(art[p] - r0), Math.abs(art[p + 1] - g0), Math.abs(art[p + 2] - b0));
+      if (most > SMOOTH_TOLERANCE) return 0;
     }
   }
-  return true;
+  return most <= FLAT_TOLERANCE ? FLAT : SMOOTH;
 }

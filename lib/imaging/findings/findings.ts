@@ -234,7 +234,7 @@ export function regionsToFindings(regions: Region[], rules: FindingRules): { fin
   const structuralPx = STRUCTURAL_SHARE * rules.minStrongPx;
   const glyphs = mergeNearby(regions.filter((r) => r.structural[0] + r.structural[1] > 0), gapPx)
     .filter((r) => r.strongCount >= rules.minStrongPx && r.structural[0] + r.structural[1] >= structuralPx && ((r.structural[0] >= 1 && r.structural[1] >= 1) || r.strongCount >= structuralPx));
-  const merged = mergeNearby([...strong, ...glyphs], gapPx);
+  const merged = mergeByClass([...strong, ...glyphs], gapPx);
   const pxArea = (25.4 / rules.dpi) ** 2;
   const peak = rules.peakDeltaE00;
   const keeps = (r: Region): boolean => {
@@ -282,13 +282,28 @@ const STREAK_MIN_ELONGATION = 5;
 const TEXT_MIN_LINEWORK_SHARE = 0.6;
 const TEXT_MIN_MISSING_SHARE = 0.25;
 
+/**
+ * A colour patch: a region of at least MIN_COLOUR_SHIFT_MM2 off the artwork's type whose mean ΔE00 stays under
+ * this, whichever way its pixels lean. A reprinted or contaminated patch is a few ΔE00 lighter or darker (ΔE00
+ * 4–12 on the second simulator), while a spot, splash or void of ink differs by the whole ink (mean ΔE00 20
+ * and more; felt-tip dots and voids under 4 mm² besides).
+ */
+const COLOUR_PATCH_MAX_MEAN = 12;
+
 export function kindOfRegion(r: Region, dpi: number): FindingKind {
   const base = kindOf(r.votes);
-  if (base === "colour_shift") return base;
+  const areaMm2 = r.count * (25.4 / dpi) ** 2;
+  if (base === "colour_shift") {
+    // Under the colour minimum a region is kept only as a spot of strong colour (SPOT_PEAK_SHARE): a dot of
+    // pen ink or a hickey's core when darker than the artwork, a void when lighter.
+    if (areaMm2 >= MIN_COLOUR_SHIFT_MM2) return base;
+    return r.shiftSum[0] < 0 ? "extra_ink" : "missing_ink";
+  }
   const { length, width } = shapeMm(r, dpi);
   if (length >= STREAK_MIN_LENGTH_MM && width <= STREAK_MAX_WIDTH_MM && length >= STREAK_MIN_ELONGATION * width) return "streak";
   const ink = r.votes[0] + r.votes[1];
   if (r.onLinework >= TEXT_MIN_LINEWORK_SHARE * r.count && r.votes[1] >= TEXT_MIN_MISSING_SHARE * ink) return "changed_text";
+  if (areaMm2 >= MIN_COLOUR_SHIFT_MM2 && r.sumDeltaE / r.count <= COLOUR_PATCH_MAX_MEAN && r.onLinework < TEXT_MIN_LINEWORK_SHARE * r.count) return "colour_shift";
   return base;
 }
 
@@ -317,30 +332,78 @@ function kindOf(votes: [number, number, number]): FindingKind {
   return extra >= missing ? "extra_ink" : "missing_ink";
 }
 
+/**
+ * A colour region and an ink region join only when neither is over this many times the other's area: a speck
+ * of ink beside a tint's colour shift (or inside the noise of a picture) is its own finding with its own tight
+ * box, not a corner of the larger one (tight recall on 70 training sheets of the second simulator 86.5 % with
+ * every class merged together, 92.7 % with this).
+ */
+const CROSS_CLASS_AREA_RATIO = 10;
+
+/**
+ * Colour regions and ink regions linked each among their own first; then a colour and an ink region that come
+ * near join their groups when the groups are alike in size.
+ */
+function mergeByClass(regions: Region[], gapPx: number): Region[] {
+  const colour = regions.map((r) => kindOf(r.votes) === "colour_shift");
+  const groups = new UnionFind(regions.length);
+  forNearPairs(regions, gapPx, (i, j) => { if (colour[i] === colour[j]) groups.union(i, j); });
+  const size = new Map<number, number>();
+  regions.forEach((r, i) => size.set(groups.find(i), (size.get(groups.find(i)) ?? 0) + r.count));
+  const alike = (i: number, j: number) => {
+    const a = size.get(groups.find(i))!, b = size.get(groups.find(j))!;
+    return Math.max(a, b) <= CROSS_CLASS_AREA_RATIO * Math.min(a, b);
+  };
+  const crossing: [number, number][] = [];
+  forNearPairs(regions, gapPx, (i, j) => { if (colour[i] !== colour[j] && alike(i, j)) crossing.push([i, j]); });
+  for (const [i, j] of crossing) groups.union(i, j);
+  return combine(regions, groups);
+}
+
 /** Joins regions whose own boxes come within `gapPx` of each other, directly or through other regions. */
 function mergeNearby(regions: Region[], gapPx: number): Region[] {
-  // Single linkage on the regions' own boxes (union–find): two regions join when their boxes come within the
-  // gap. Testing against a merged region's growing box instead made the box itself the bridge: its empty
-  // corners reached regions near no member, and noise chained into a box over a whole label.
-  const n = regions.length;
-  const parent = Int32Array.from({ length: n }, (_, i) => i);
-  const find = (i: number): number => {
-    while (parent[i] !== i) i = parent[i] = parent[parent[i]];
-    return i;
-  };
+  // Single linkage on the regions' own boxes: two regions join when their boxes come within the gap. Testing
+  // against a merged region's growing box instead made the box itself the bridge: its empty corners reached
+  // regions near no member, and noise chained into a box over a whole label.
+  const groups = new UnionFind(regions.length);
+  forNearPairs(regions, gapPx, (i, j) => groups.union(i, j));
+  return combine(regions, groups);
+}
+
+/** Calls `visit` for every pair of regions whose boxes come within `gapPx` of each other. */
+function forNearPairs(regions: Region[], gapPx: number, visit: (i: number, j: number) => void): void {
   const order = regions.map((_, i) => i).sort((a, b) => regions[a].x0 - regions[b].x0);
-  for (let oi = 0; oi < n; oi++) {
+  for (let oi = 0; oi < order.length; oi++) {
     const a = regions[order[oi]];
-    for (let oj = oi + 1; oj < n; oj++) {
+    for (let oj = oi + 1; oj < order.length; oj++) {
       const b = regions[order[oj]];
       if (b.x0 - gapPx > a.x1) break; // sorted by x0: no later region can come nearer in x
       if (a.x0 - gapPx > b.x1 || a.y0 - gapPx > b.y1 || b.y0 - gapPx > a.y1) continue;
-      parent[find(order[oi])] = find(order[oj]);
+      visit(order[oi], order[oj]);
     }
   }
+}
+
+class UnionFind {
+  private readonly parent: Int32Array;
+  constructor(n: number) {
+    this.parent = Int32Array.from({ length: n }, (_, i) => i);
+  }
+  find(i: number): number {
+    const p = this.parent;
+    while (p[i] !== i) i = p[i] = p[p[i]];
+    return i;
+  }
+  union(a: number, b: number): void {
+    this.parent[this.find(a)] = this.find(b);
+  }
+}
+
+/** One region per group: boxes joined, counts and sums added. */
+function combine(regions: Region[], groups: UnionFind): Region[] {
   const byRoot = new Map<number, Region>();
-  for (let i = 0; i < n; i++) {
-    const b = regions[i], root = find(i);
+  for (let i = 0; i < regions.length; i++) {
+    const b = regions[i], root = groups.find(i);
     const a = byRoot.get(root);
     if (!a) {
       byRoot.set(root, { ...b, votes: [...b.votes] as [number, number, number], structural: [...b.structural] as [number, number], shiftSum: [...b.shiftSum] as [number, number, number], moments: [...b.moments] as Region["moments"] });
