@@ -77,7 +77,7 @@ describe("inspectSheet on simulated sheets", () => {
     expect(result.findings.filter((f) => !overlaps(f, box))).toEqual([]);
   });
 
-  it("finds a one-digit change (250 → 350 ml) in 6 pt text on a 297 × 210 mm sheet of six ups at 300 dpi", { timeout: 60_000 }, async () => {
+  it("finds a one-digit change (250 → 350 ml) in 6 pt text on a 297 × 210 mm sheet of six ups at 300 dpi", { timeout: 120_000 }, async () => {
     const carton = { widthMm: 297, heightMm: 210, rows: 2, columns: 3 };
     const [approved, changed] = await Promise.all([
       makeCartonPdf(carton),
