@@ -2,8 +2,8 @@
 // so a copy of the database does not hand out working tokens. A token acts with its user's current role: a
 // disabled user, a revoked or an expired token is refused alike. No "server-only": the CLI and tests use this.
 import { createHash, randomBytes } from "node:crypto";
-import { and, desc, eq, isNull, lte, or } from "drizzle-orm";
-import { db } from "../../db/client";
+import { and, desc, eq, isNull, lte, or, sql } from "drizzle-orm";
+import { db, prepared } from "../../db/client";
 import { apiTokens, users } from "../../db/schema";
 import { recordAudit } from "../audit";
 import { AppError, notFound } from "../errors";
@@ -79,17 +79,9 @@ export async function revokeApiToken(actor: Actor, tokenId: number): Promise<voi
   });
 }
 
-export type TokenCheck =
-  | { ok: true; actor: Actor; tokenId: number; lastUsedAt: Date | null }
-  | { ok: false; reason: "malformed" | "unknown" | "revoked" | "expired" | "user_disabled"; userId?: number };
-
-/**
- * Looks a presented token up and judges it, in one query (token and user together) and without writing: callers
- * may run it beside other checks (the rate limit) and record the use only once the request is let through.
- */
-export async function findApiToken(token: string): Promise<TokenCheck> {
-  if (!TOKEN_PATTERN.test(token)) return { ok: false, reason: "malformed" };
-  const [row] = await db
+/** The token's row and its user's, by the token's sha256. */
+const tokenWithUser = prepared((database) =>
+  database
     .select({
       tokenId: apiTokens.id,
       lastUsedAt: apiTokens.lastUsedAt,
@@ -104,8 +96,22 @@ export async function findApiToken(token: string): Promise<TokenCheck> {
     })
     .from(apiTokens)
     .innerJoin(users, eq(users.id, apiTokens.userId))
-    .where(eq(apiTokens.tokenSha256, hashToken(token)))
-    .limit(1);
+    .where(eq(apiTokens.tokenSha256, sql.placeholder("sha256")))
+    .limit(1)
+    .prepare(),
+);
+
+export type TokenCheck =
+  | { ok: true; actor: Actor; tokenId: number; lastUsedAt: Date | null }
+  | { ok: false; reason: "malformed" | "unknown" | "revoked" | "expired" | "user_disabled"; userId?: number };
+
+/**
+ * Looks a presented token up and judges it, in one query (token and user together) and without writing: callers
+ * may run it beside other checks (the rate limit) and record the use only once the request is let through.
+ */
+export async function findApiToken(token: string): Promise<TokenCheck> {
+  if (!TOKEN_PATTERN.test(token)) return { ok: false, reason: "malformed" };
+  const [row] = await tokenWithUser().execute({ sha256: hashToken(token) });
   if (!row) return { ok: false, reason: "unknown" };
   if (row.revokedAt) return { ok: false, reason: "revoked", userId: row.id };
   if (row.expiresAt && row.expiresAt.getTime() <= Date.now()) return { ok: false, reason: "expired", userId: row.id };

@@ -1,6 +1,6 @@
 // Inspections as users act on them: retry a failed one (QA, admin), read a finding's crop image.
 import { eq, sql } from "drizzle-orm";
-import { db } from "@/db/client";
+import { db, prepared } from "@/db/client";
 import { findings, inspections, jobs, scans } from "@/db/schema";
 import { recordAudit } from "@/lib/audit";
 import { authorize, can, type Action, type Actor } from "@/lib/auth/policy";
@@ -106,16 +106,21 @@ export function findingView(f: typeof findings.$inferSelect): FindingView {
   };
 }
 
-/** Findings of one inspection with links to their crop images, largest first. */
-export async function listFindings(actor: Actor, inspectionId: number): Promise<FindingView[]> {
-  // The policy's facts and the findings in one query: a row per finding, or one without a finding when there is none.
-  const rows = await db
+const findingsWithPolicyFacts = prepared((database) =>
+  database
     .select({ customerId: jobs.customerId, finding: findings })
     .from(inspections)
     .innerJoin(scans, eq(scans.id, inspections.scanId))
     .innerJoin(jobs, eq(jobs.id, scans.jobId))
     .leftJoin(findings, eq(findings.inspectionId, inspections.id))
-    .where(eq(inspections.id, inspectionId));
+    .where(eq(inspections.id, sql.placeholder("inspectionId")))
+    .prepare(),
+);
+
+/** Findings of one inspection with links to their crop images, largest first. */
+export async function listFindings(actor: Actor, inspectionId: number): Promise<FindingView[]> {
+  // The policy's facts and the findings in one query: a row per finding, or one without a finding when there is none.
+  const rows = await findingsWithPolicyFacts().execute({ inspectionId });
   allowOn(actor, rows[0], "inspection.read");
   return rows
     .flatMap((r) => (r.finding ? [r.finding] : []))

@@ -1,7 +1,7 @@
 // What the job page shows of the pipeline, cut to the fields the page needs. Polled while work is running.
 import { asc, desc, eq, sql } from "drizzle-orm";
 import { alias } from "drizzle-orm/mysql-core";
-import { db } from "@/db/client";
+import { prepared } from "@/db/client";
 import { artworkRevisions, findings, inspections, scans, toleranceProfiles, users, type ArtworkPreflight, type ExcludedArea, type RectMm } from "@/db/schema";
 import { can, type Actor } from "@/lib/auth/policy";
 import { loadJobFor } from "./access";
@@ -80,9 +80,9 @@ const uploader = alias(users, "uploader");
 const approver = alias(users, "approver");
 
 /** The job's revisions, newest first, with the names of who uploaded and approved each (one query). */
-function revisionsOf(jobId: number) {
+const revisionsOf = prepared((database) => {
   const r = artworkRevisions;
-  return db
+  return database
     .select({
       id: r.id, revision: r.revision, originalFilename: r.originalFilename, byteSize: r.byteSize, sourceSha256: r.sourceSha256, status: r.status,
       rasterStatus: r.rasterStatus, rasterError: r.rasterError, pageWidthUm: r.pageWidthUm, pageHeightUm: r.pageHeightUm, createdAt: r.createdAt,
@@ -94,13 +94,14 @@ function revisionsOf(jobId: number) {
     .from(artworkRevisions)
     .leftJoin(uploader, eq(uploader.id, artworkRevisions.uploadedBy))
     .leftJoin(approver, eq(approver.id, artworkRevisions.approvedBy))
-    .where(eq(artworkRevisions.jobId, jobId))
-    .orderBy(desc(artworkRevisions.revision));
-}
+    .where(eq(artworkRevisions.jobId, sql.placeholder("jobId")))
+    .orderBy(desc(artworkRevisions.revision))
+    .prepare();
+});
 
 /** The job's scans in sheet order, each with every inspection of it, newest first (one query). */
-function sheetsOf(jobId: number) {
-  return db
+const sheetsOf = prepared((database) =>
+  database
     .select({
       scan: { id: scans.id, sheetNumber: scans.sheetNumber, originalFilename: scans.originalFilename, byteSize: scans.byteSize, createdAt: scans.createdAt, artworkRevisionId: scans.artworkRevisionId },
       inspection: {
@@ -120,17 +121,22 @@ function sheetsOf(jobId: number) {
     .from(scans)
     .leftJoin(inspections, eq(inspections.scanId, scans.id))
     .leftJoin(toleranceProfiles, eq(toleranceProfiles.id, inspections.toleranceProfileId))
-    .where(eq(scans.jobId, jobId))
-    .orderBy(asc(scans.sheetNumber), asc(scans.id), desc(inspections.id));
-}
+    .where(eq(scans.jobId, sql.placeholder("jobId")))
+    .orderBy(asc(scans.sheetNumber), asc(scans.id), desc(inspections.id))
+    .prepare(),
+);
+
+const profilesInOrder = prepared((database) =>
+  database.select({ id: toleranceProfiles.id, name: toleranceProfiles.name, label: toleranceProfiles.label }).from(toleranceProfiles).orderBy(asc(toleranceProfiles.id)).prepare(),
+);
 
 export async function getJobPipeline(actor: Actor, jobId: number): Promise<JobPipelineView> {
   // Independent reads, sent together; nothing of them leaves this function unless the actor may read the job.
   const [job, revisionRows, sheetRows, profileRows] = await Promise.all([
     loadJobFor(actor, jobId, "job.read"),
-    revisionsOf(jobId),
-    sheetsOf(jobId),
-    db.select({ id: toleranceProfiles.id, name: toleranceProfiles.name, label: toleranceProfiles.label }).from(toleranceProfiles).orderBy(asc(toleranceProfiles.id)),
+    revisionsOf().execute({ jobId }),
+    sheetsOf().execute({ jobId }),
+    profilesInOrder().execute(),
   ]);
   const resource = { customerId: job.customerId };
   const mayReadInspections = can(actor, "inspection.read", resource);
