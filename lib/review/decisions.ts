@@ -8,7 +8,7 @@ import { recordAudit } from "@/lib/audit";
 import type { Actor } from "@/lib/auth/policy";
 import { AppError, notFound } from "@/lib/errors";
 import { loadRun, memoryChanges, writeMemory } from "@/lib/run/memory-store";
-import { loadSheetFor, type SheetRow } from "./load";
+import { lockSheetForDecision, type SheetRow } from "./load";
 
 export type Decision = "accepted" | "rejected";
 export type DecisionReason = "no_defect" | "within_tolerance" | "defect";
@@ -65,7 +65,7 @@ export const sheetLocked = () =>
   new AppError("sheet_signed", "This sheet is signed off and locked. An administrator can reopen it, giving a reason.", 409);
 
 /** A signed sheet (verdict passed or failed) takes no decisions until an administrator reopens it. */
-export function assertOpen(sheet: SheetRow): void {
+export function assertOpen(sheet: { inspection: Pick<SheetRow["inspection"], "verdict" | "status"> }): void {
   if (sheet.inspection.verdict !== "pending") throw sheetLocked();
   if (sheet.inspection.status !== "done") {
     throw new AppError("inspection_not_done", "This sheet's inspection has not finished; there is nothing to decide yet.", 409);
@@ -116,7 +116,7 @@ async function changeFinding(
   return db.transaction(async (tx) => {
     // The sheet and the finding locked in one statement; while the sheet is locked no other decision of the run
     // (they lock the run's revision row too) can change what run memory is computed from below.
-    const sheet = await loadSheetFor(actor, input.inspectionId, "finding.decide", tx, true, input.findingId);
+    const sheet = await lockSheetForDecision(actor, input.inspectionId, input.findingId, tx);
     assertOpen(sheet);
     const finding = sheet.finding;
     if (!finding) throw notFound("The finding");
@@ -126,7 +126,7 @@ async function changeFinding(
     }
     // Later sheets of the run may now be pre-marked "accepted on sheet N" (or no longer, after an undo): the run as
     // it will be once this decision is written (the decision is the only input of run memory that changes here).
-    const run = await loadRun(tx, sheet.scan.artworkRevisionId);
+    const run = await loadRun(tx, sheet.revisionId);
     const decided = run && { ...run, findings: run.findings.map((f) => (f.id === finding.id ? { ...f, decision: change.decision } : f)) };
     const decidedAt = new Date();
     // Independent writes (other columns or other rows), sent together.
@@ -144,7 +144,7 @@ async function changeFinding(
         subjectId: finding.id,
         details: {
           inspectionId: input.inspectionId,
-          jobId: sheet.job.id,
+          jobId: sheet.jobId,
           from: finding.decision,
           to: change.decision,
           reason: change.reason,
