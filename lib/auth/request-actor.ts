@@ -11,7 +11,7 @@ import { AppError, notSignedIn, tooManyAttempts } from "../errors";
 import { loadActor } from "./credentials";
 import type { Actor } from "./policy";
 import { clientAddress, recordFailure, retryAfter } from "./rate-limit";
-import { checkApiToken, type TokenCheck } from "./tokens";
+import { findApiToken, recordTokenUse, type TokenCheck } from "./tokens";
 
 const SAFE_METHODS = new Set(["GET", "HEAD", "OPTIONS"]);
 
@@ -43,11 +43,18 @@ export function isCrossOrigin(request: Request): boolean {
 async function actorFromToken(request: Request, authorization: string): Promise<Actor> {
   const address = clientAddress(request.headers);
   const [scheme, token, ...rest] = authorization.trim().split(/\s+/);
-  const wait = await retryAfter("token", { address });
+  const wellFormed = scheme?.toLowerCase() === "bearer" && token && rest.length === 0;
+  // The address's block and the token's row are independent reads: one wait for both. Nothing is written (last
+  // use, audit, failure count) until the block has been looked at, as when they ran one after the other.
+  const [wait, check]: [number | null, TokenCheck] = await Promise.all([
+    retryAfter("token", { address }),
+    wellFormed ? findApiToken(token) : Promise.resolve({ ok: false, reason: "malformed" } as const),
+  ]);
   if (wait) throw tooManyAttempts(wait);
-  const check: TokenCheck =
-    scheme?.toLowerCase() === "bearer" && token && rest.length === 0 ? await checkApiToken(token) : { ok: false, reason: "malformed" };
-  if (check.ok) return check.actor;
+  if (check.ok) {
+    await recordTokenUse(check);
+    return check.actor;
+  }
   const account = check.userId ? `user:${check.userId}` : undefined;
   if (check.userId) {
     await recordAudit(db, { actorId: check.userId, action: "api_token.refused", subjectType: "user", subjectId: check.userId, details: { reason: check.reason, address } });

@@ -2,8 +2,8 @@
 // so a copy of the database does not hand out working tokens. A token acts with its user's current role: a
 // disabled user, a revoked or an expired token is refused alike. No "server-only": the CLI and tests use this.
 import { createHash, randomBytes } from "node:crypto";
-import { and, desc, eq, isNull, lte, or } from "drizzle-orm";
-import { db } from "../../db/client";
+import { and, desc, eq, isNull, lte, or, sql } from "drizzle-orm";
+import { db, prepared } from "../../db/client";
 import { apiTokens, users } from "../../db/schema";
 import { recordAudit } from "../audit";
 import { AppError, notFound } from "../errors";
@@ -79,40 +79,66 @@ export async function revokeApiToken(actor: Actor, tokenId: number): Promise<voi
   });
 }
 
-export type TokenCheck =
-  | { ok: true; actor: Actor; tokenId: number }
-  | { ok: false; reason: "malformed" | "unknown" | "revoked" | "expired" | "user_disabled"; userId?: number };
-
-/** Checks a presented token. A successful use is recorded (last use, audit) at most once a minute per token. */
-export async function checkApiToken(token: string): Promise<TokenCheck> {
-  if (!TOKEN_PATTERN.test(token)) return { ok: false, reason: "malformed" };
-  const [row] = await db
-    .select({ token: apiTokens, user: users })
+/** The token's row and its user's, by the token's sha256. */
+const tokenWithUser = prepared((database) =>
+  database
+    .select({
+      tokenId: apiTokens.id,
+      lastUsedAt: apiTokens.lastUsedAt,
+      expiresAt: apiTokens.expiresAt,
+      revokedAt: apiTokens.revokedAt,
+      id: users.id,
+      role: users.role,
+      customerId: users.customerId,
+      name: users.name,
+      email: users.email,
+      disabled: users.disabled,
+    })
     .from(apiTokens)
     .innerJoin(users, eq(users.id, apiTokens.userId))
-    .where(eq(apiTokens.tokenSha256, hashToken(token)))
-    .limit(1);
+    .where(eq(apiTokens.tokenSha256, sql.placeholder("sha256")))
+    .limit(1)
+    .prepare(),
+);
+
+export type TokenCheck =
+  | { ok: true; actor: Actor; tokenId: number; lastUsedAt: Date | null }
+  | { ok: false; reason: "malformed" | "unknown" | "revoked" | "expired" | "user_disabled"; userId?: number };
+
+/**
+ * Looks a presented token up and judges it, in one query (token and user together) and without writing: callers
+ * may run it beside other checks (the rate limit) and record the use only once the request is let through.
+ */
+export async function findApiToken(token: string): Promise<TokenCheck> {
+  if (!TOKEN_PATTERN.test(token)) return { ok: false, reason: "malformed" };
+  const [row] = await tokenWithUser().execute({ sha256: hashToken(token) });
   if (!row) return { ok: false, reason: "unknown" };
-  const { token: t, user } = row;
-  if (t.revokedAt) return { ok: false, reason: "revoked", userId: user.id };
-  if (t.expiresAt && t.expiresAt.getTime() <= Date.now()) return { ok: false, reason: "expired", userId: user.id };
-  if (user.disabled) return { ok: false, reason: "user_disabled", userId: user.id };
+  if (row.revokedAt) return { ok: false, reason: "revoked", userId: row.id };
+  if (row.expiresAt && row.expiresAt.getTime() <= Date.now()) return { ok: false, reason: "expired", userId: row.id };
+  if (row.disabled) return { ok: false, reason: "user_disabled", userId: row.id };
+  const { id, role, customerId, name, email } = row;
+  return { ok: true, tokenId: row.tokenId, lastUsedAt: row.lastUsedAt, actor: { id, role, customerId, name, email } };
+}
+
+/** Records a successful use (last use, audit) at most once a minute per token; between those, no write at all. */
+export async function recordTokenUse(check: Extract<TokenCheck, { ok: true }>): Promise<void> {
   const now = new Date();
-  if (!t.lastUsedAt || now.getTime() - t.lastUsedAt.getTime() >= LAST_USE_GRANULARITY_MS) {
-    // Many requests of one scanner station arrive together: only the one whose update still finds the old
-    // last use records it, so the trail gets one "token used" a minute, not one per request in flight.
-    const stale = new Date(now.getTime() - LAST_USE_GRANULARITY_MS);
-    await db.transaction(async (tx) => {
-      const [result] = await tx
-        .update(apiTokens)
-        .set({ lastUsedAt: now })
-        .where(and(eq(apiTokens.id, t.id), or(isNull(apiTokens.lastUsedAt), lte(apiTokens.lastUsedAt, stale))));
-      if (result.affectedRows === 1) await recordAudit(tx, { actorId: user.id, action: "api_token.use", subjectType: "api_token", subjectId: t.id });
-    });
-  }
-  return {
-    ok: true,
-    tokenId: t.id,
-    actor: { id: user.id, role: user.role, customerId: user.customerId, name: user.name, email: user.email },
-  };
+  if (check.lastUsedAt && now.getTime() - check.lastUsedAt.getTime() < LAST_USE_GRANULARITY_MS) return;
+  // Many requests of one scanner station arrive together: only the one whose update still finds the old
+  // last use records it, so the trail gets one "token used" a minute, not one per request in flight.
+  const stale = new Date(now.getTime() - LAST_USE_GRANULARITY_MS);
+  await db.transaction(async (tx) => {
+    const [result] = await tx
+      .update(apiTokens)
+      .set({ lastUsedAt: now })
+      .where(and(eq(apiTokens.id, check.tokenId), or(isNull(apiTokens.lastUsedAt), lte(apiTokens.lastUsedAt, stale))));
+    if (result.affectedRows === 1) await recordAudit(tx, { actorId: check.actor.id, action: "api_token.use", subjectType: "api_token", subjectId: check.tokenId });
+  });
+}
+
+/** Checks a presented token and records a successful use (at most once a minute per token). */
+export async function checkApiToken(token: string): Promise<TokenCheck> {
+  const check = await findApiToken(token);
+  if (check.ok) await recordTokenUse(check);
+  return check;
 }

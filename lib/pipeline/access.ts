@@ -1,7 +1,7 @@
 // Loading a job for an actor: a job the actor may not read is "not found" (a customer user learns nothing about
 // other customers' jobs); a job they may read but not act on is "forbidden".
-import { eq } from "drizzle-orm";
-import { db, type Db, type Tx } from "@/db/client";
+import { eq, sql } from "drizzle-orm";
+import { db, prepared, type Db, type Tx } from "@/db/client";
 import { customers, jobs, type Job } from "@/db/schema";
 import { authorize, can, type Action, type Actor } from "@/lib/auth/policy";
 import { AppError, notFound } from "@/lib/errors";
@@ -15,13 +15,18 @@ export function parseId(value: string | undefined, what: string): number {
   return id;
 }
 
-export async function loadJobFor(actor: Actor, jobId: number, action: Action, executor: Db | Tx = db): Promise<JobWithCustomer> {
-  const [row] = await executor
+const jobWithCustomer = (executor: Db | Tx) =>
+  executor
     .select({ job: jobs, customerName: customers.name })
     .from(jobs)
     .innerJoin(customers, eq(customers.id, jobs.customerId))
-    .where(eq(jobs.id, jobId))
+    .where(eq(jobs.id, sql.placeholder("jobId")))
     .limit(1);
+const jobQuery = prepared((database) => jobWithCustomer(database).prepare());
+
+export async function loadJobFor(actor: Actor, jobId: number, action: Action, executor: Db | Tx = db): Promise<JobWithCustomer> {
+  // The shared handle uses the query prepared once; a transaction prepares its own.
+  const [row] = await (executor === db ? jobQuery() : jobWithCustomer(executor).prepare()).execute({ jobId });
   if (!row || !can(actor, "job.read", { customerId: row.job.customerId })) throw notFound("The job");
   authorize(actor, action, { customerId: row.job.customerId });
   return { ...row.job, customerName: row.customerName };

@@ -1,6 +1,6 @@
 // Inspections as users act on them: retry a failed one (QA, admin), read a finding's crop image.
 import { eq, sql } from "drizzle-orm";
-import { db } from "@/db/client";
+import { db, prepared } from "@/db/client";
 import { findings, inspections, jobs, scans } from "@/db/schema";
 import { recordAudit } from "@/lib/audit";
 import { authorize, can, type Action, type Actor } from "@/lib/auth/policy";
@@ -22,9 +22,14 @@ async function inspectionFor(actor: Actor, id: number, action: Action) {
     .innerJoin(jobs, eq(jobs.id, scans.jobId))
     .where(eq(inspections.id, id))
     .limit(1);
+  allowOn(actor, row, action);
+  return row;
+}
+
+/** An inspection the actor may not read is "not found", like one that does not exist. */
+function allowOn(actor: Actor, row: { customerId: number } | undefined, action: Action): asserts row {
   if (!row || !can(actor, "job.read", { customerId: row.customerId })) throw notFound("The inspection");
   authorize(actor, action, { customerId: row.customerId });
-  return row;
 }
 
 async function loadInspection(id: number) {
@@ -101,11 +106,26 @@ export function findingView(f: typeof findings.$inferSelect): FindingView {
   };
 }
 
+const findingsWithPolicyFacts = prepared((database) =>
+  database
+    .select({ customerId: jobs.customerId, finding: findings })
+    .from(inspections)
+    .innerJoin(scans, eq(scans.id, inspections.scanId))
+    .innerJoin(jobs, eq(jobs.id, scans.jobId))
+    .leftJoin(findings, eq(findings.inspectionId, inspections.id))
+    .where(eq(inspections.id, sql.placeholder("inspectionId")))
+    .prepare(),
+);
+
 /** Findings of one inspection with links to their crop images, largest first. */
 export async function listFindings(actor: Actor, inspectionId: number): Promise<FindingView[]> {
-  await inspectionFor(actor, inspectionId, "inspection.read");
-  const rows = await db.select().from(findings).where(eq(findings.inspectionId, inspectionId));
-  return rows.sort((a, b) => b.areaUm2 - a.areaUm2).map(findingView);
+  // The policy's facts and the findings in one query: a row per finding, or one without a finding when there is none.
+  const rows = await findingsWithPolicyFacts().execute({ inspectionId });
+  allowOn(actor, rows[0], "inspection.read");
+  return rows
+    .flatMap((r) => (r.finding ? [r.finding] : []))
+    .sort((a, b) => b.areaUm2 - a.areaUm2)
+    .map(findingView);
 }
 
 export interface InspectionView {

@@ -1,6 +1,7 @@
 // What the job page shows of the pipeline, cut to the fields the page needs. Polled while work is running.
-import { asc, desc, eq, inArray, sql } from "drizzle-orm";
-import { db } from "@/db/client";
+import { asc, desc, eq, sql } from "drizzle-orm";
+import { alias } from "drizzle-orm/mysql-core";
+import { prepared } from "@/db/client";
 import { artworkRevisions, findings, inspections, scans, toleranceProfiles, users, type ArtworkPreflight, type ExcludedArea, type RectMm } from "@/db/schema";
 import { can, type Actor } from "@/lib/auth/policy";
 import { loadJobFor } from "./access";
@@ -75,41 +76,75 @@ export interface JobPipelineView {
 
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
-export async function getJobPipeline(actor: Actor, jobId: number): Promise<JobPipelineView> {
-  const job = await loadJobFor(actor, jobId, "job.read");
-  const resource = { customerId: job.customerId };
-  const revisionRows = await db
-    .select()
+const uploader = alias(users, "uploader");
+const approver = alias(users, "approver");
+
+/** The job's revisions, newest first, with the names of who uploaded and approved each (one query). */
+const revisionsOf = prepared((database) => {
+  const r = artworkRevisions;
+  return database
+    .select({
+      id: r.id, revision: r.revision, originalFilename: r.originalFilename, byteSize: r.byteSize, sourceSha256: r.sourceSha256, status: r.status,
+      rasterStatus: r.rasterStatus, rasterError: r.rasterError, pageWidthUm: r.pageWidthUm, pageHeightUm: r.pageHeightUm, createdAt: r.createdAt,
+      approvedAt: r.approvedAt, supersededAt: r.supersededAt, upsRows: r.upsRows, upsColumns: r.upsColumns, excludedAreas: r.excludedAreas, preflight: r.preflight,
+      upsAreaXUm: r.upsAreaXUm, upsAreaYUm: r.upsAreaYUm, upsAreaWUm: r.upsAreaWUm, upsAreaHUm: r.upsAreaHUm,
+      uploadedByName: uploader.name,
+      approvedByName: approver.name,
+    })
     .from(artworkRevisions)
-    .where(eq(artworkRevisions.jobId, job.id))
-    .orderBy(desc(artworkRevisions.revision));
-  const personIds = [...new Set(revisionRows.flatMap((r) => [r.uploadedBy, r.approvedBy]).filter((v): v is number => v !== null))];
-  const people = personIds.length ? await db.select({ id: users.id, name: users.name }).from(users).where(inArray(users.id, personIds)) : [];
-  const nameOf = (id: number | null) => people.find((p) => p.id === id)?.name ?? null;
-  const scanRows = await db
-    .select()
+    .leftJoin(uploader, eq(uploader.id, artworkRevisions.uploadedBy))
+    .leftJoin(approver, eq(approver.id, artworkRevisions.approvedBy))
+    .where(eq(artworkRevisions.jobId, sql.placeholder("jobId")))
+    .orderBy(desc(artworkRevisions.revision))
+    .prepare();
+});
+
+/** The job's scans in sheet order, each with every inspection of it, newest first (one query). */
+const sheetsOf = prepared((database) =>
+  database
+    .select({
+      scan: { id: scans.id, sheetNumber: scans.sheetNumber, originalFilename: scans.originalFilename, byteSize: scans.byteSize, createdAt: scans.createdAt, artworkRevisionId: scans.artworkRevisionId },
+      inspection: {
+        id: inspections.id,
+        status: inspections.status,
+        stage: inspections.stage,
+        progressPercent: inspections.progressPercent,
+        errorCode: inspections.errorCode,
+        errorMessage: inspections.errorMessage,
+        verdict: inspections.verdict,
+        attempts: inspections.attempts,
+        finishedAt: inspections.finishedAt,
+      },
+      profileLabel: toleranceProfiles.label,
+      findingsCount: sql<number>`(select count(*) from ${findings} where ${findings.inspectionId} = ${inspections.id})`.mapWith(Number),
+    })
     .from(scans)
-    .where(eq(scans.jobId, job.id))
-    .orderBy(asc(scans.sheetNumber), asc(scans.id));
+    .leftJoin(inspections, eq(inspections.scanId, scans.id))
+    .leftJoin(toleranceProfiles, eq(toleranceProfiles.id, inspections.toleranceProfileId))
+    .where(eq(scans.jobId, sql.placeholder("jobId")))
+    .orderBy(asc(scans.sheetNumber), asc(scans.id), desc(inspections.id))
+    .prepare(),
+);
+
+const profilesInOrder = prepared((database) =>
+  database.select({ id: toleranceProfiles.id, name: toleranceProfiles.name, label: toleranceProfiles.label }).from(toleranceProfiles).orderBy(asc(toleranceProfiles.id)).prepare(),
+);
+
+export async function getJobPipeline(actor: Actor, jobId: number): Promise<JobPipelineView> {
+  // Independent reads, sent together; nothing of them leaves this function unless the actor may read the job.
+  const [job, revisionRows, sheetRows, profileRows] = await Promise.all([
+    loadJobFor(actor, jobId, "job.read"),
+    revisionsOf().execute({ jobId }),
+    sheetsOf().execute({ jobId }),
+    profilesInOrder().execute(),
+  ]);
+  const resource = { customerId: job.customerId };
   const mayReadInspections = can(actor, "inspection.read", resource);
-  const inspectionRows =
-    mayReadInspections && scanRows.length > 0
-      ? await db
-          .select({
-            inspection: inspections,
-            profileLabel: toleranceProfiles.label,
-            findingsCount: sql<number>`(select count(*) from ${findings} where ${findings.inspectionId} = ${inspections.id})`.mapWith(Number),
-          })
-          .from(inspections)
-          .innerJoin(toleranceProfiles, eq(toleranceProfiles.id, inspections.toleranceProfileId))
-          .where(inArray(inspections.scanId, scanRows.map((s) => s.id)))
-          .orderBy(desc(inspections.id))
-      : [];
+  // One row per inspection (or one for a scan without any); the first of a scan is its newest inspection.
+  const scanRows = sheetRows.filter((r, k) => k === 0 || sheetRows[k - 1].scan.id !== r.scan.id);
   const revisionNumber = new Map(revisionRows.map((r) => [r.id, r.revision]));
-  const sheets: SheetView[] = scanRows.map((s) => {
-    // The newest inspection of a scan is the one shown.
-    const row = inspectionRows.find((r) => r.inspection.scanId === s.id);
-    const i = row?.inspection;
+  const sheets: SheetView[] = scanRows.map(({ scan: s, inspection, profileLabel, findingsCount }) => {
+    const i = mayReadInspections ? inspection : null;
     return {
       scanId: s.id,
       sheetNumber: s.sheetNumber,
@@ -123,18 +158,17 @@ export async function getJobPipeline(actor: Actor, jobId: number): Promise<JobPi
             status: i.status,
             stage: i.stage,
             percent: i.progressPercent,
-            findingsCount: row.findingsCount,
+            findingsCount,
             errorCode: i.errorCode,
             errorMessage: i.errorMessage,
             verdict: i.verdict,
             attempts: i.attempts,
-            profileLabel: row.profileLabel,
+            profileLabel: profileLabel ?? "",
             finishedAt: iso(i.finishedAt),
           }
         : null,
     };
   });
-  const profileRows = await db.select({ id: toleranceProfiles.id, name: toleranceProfiles.name, label: toleranceProfiles.label }).from(toleranceProfiles).orderBy(asc(toleranceProfiles.id));
   const profiles = profileRows.map(({ name, label }) => ({ name, label }));
   return {
     job: {
@@ -165,9 +199,9 @@ export async function getJobPipeline(actor: Actor, jobId: number): Promise<JobPi
       pageWidthMm: r.pageWidthUm ? r.pageWidthUm / 1000 : null,
       pageHeightMm: r.pageHeightUm ? r.pageHeightUm / 1000 : null,
       uploadedAt: r.createdAt.toISOString(),
-      uploadedByName: nameOf(r.uploadedBy),
+      uploadedByName: r.uploadedByName,
       approvedAt: iso(r.approvedAt),
-      approvedByName: nameOf(r.approvedBy),
+      approvedByName: r.approvedByName,
       supersededAt: iso(r.supersededAt),
       upsRows: r.upsRows,
       upsColumns: r.upsColumns,

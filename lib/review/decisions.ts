@@ -7,8 +7,8 @@ import { findings, inspections, users, type FindingRow } from "@/db/schema";
 import { recordAudit } from "@/lib/audit";
 import type { Actor } from "@/lib/auth/policy";
 import { AppError, notFound } from "@/lib/errors";
-import { refreshRunMemory } from "@/lib/run/memory-store";
-import { loadSheetFor, type SheetRow } from "./load";
+import { loadRun, memoryChanges, writeMemory } from "@/lib/run/memory-store";
+import { lockSheetForDecision, type SheetRow } from "./load";
 
 export type Decision = "accepted" | "rejected";
 export type DecisionReason = "no_defect" | "within_tolerance" | "defect";
@@ -65,7 +65,7 @@ export const sheetLocked = () =>
   new AppError("sheet_signed", "This sheet is signed off and locked. An administrator can reopen it, giving a reason.", 409);
 
 /** A signed sheet (verdict passed or failed) takes no decisions until an administrator reopens it. */
-export function assertOpen(sheet: SheetRow): void {
+export function assertOpen(sheet: { inspection: Pick<SheetRow["inspection"], "verdict" | "status"> }): void {
   if (sheet.inspection.verdict !== "pending") throw sheetLocked();
   if (sheet.inspection.status !== "done") {
     throw new AppError("inspection_not_done", "This sheet's inspection has not finished; there is nothing to decide yet.", 409);
@@ -114,38 +114,46 @@ async function changeFinding(
   auditAction: string,
 ): Promise<DecisionResult> {
   return db.transaction(async (tx) => {
-    const sheet = await loadSheetFor(actor, input.inspectionId, "finding.decide", tx, true);
+    // The sheet and the finding locked in one statement; while the sheet is locked no other decision of the run
+    // (they lock the run's revision row too) can change what run memory is computed from below.
+    const sheet = await lockSheetForDecision(actor, input.inspectionId, input.findingId, tx);
     assertOpen(sheet);
-    const [finding] = await tx.select().from(findings).where(eq(findings.id, input.findingId)).for("update");
-    if (!finding || finding.inspectionId !== input.inspectionId) throw notFound("The finding");
+    const finding = sheet.finding;
+    if (!finding) throw notFound("The finding");
     if (finding.version !== input.version) throw await staleError(finding, tx);
     if (change.decision === "pending" && finding.decision === "pending") {
       throw new AppError("not_decided", "This finding has no decision to undo.", 409);
     }
+    // Later sheets of the run may now be pre-marked "accepted on sheet N" (or no longer, after an undo): the run as
+    // it will be once this decision is written (the decision is the only input of run memory that changes here).
+    const run = await loadRun(tx, sheet.revisionId);
+    const decided = run && { ...run, findings: run.findings.map((f) => (f.id === finding.id ? { ...f, decision: change.decision } : f)) };
     const decidedAt = new Date();
-    await tx
-      .update(findings)
-      .set({ decision: change.decision, decisionReason: change.reason, comment: change.comment, decidedBy: actor.id, decidedAt, version: finding.version + 1 })
-      .where(eq(findings.id, finding.id));
-    await tx.update(inspections).set({ version: sql`${inspections.version} + 1` }).where(eq(inspections.id, input.inspectionId));
-    // Later sheets of the run may now be pre-marked "accepted on sheet N" (or no longer, after an undo).
-    await refreshRunMemory(tx, sheet.scan.artworkRevisionId);
-    await recordAudit(tx, {
-      actorId: actor.id,
-      action: auditAction,
-      subjectType: "finding",
-      subjectId: finding.id,
-      details: {
-        inspectionId: input.inspectionId,
-        jobId: sheet.job.id,
-        from: finding.decision,
-        to: change.decision,
-        reason: change.reason,
-        comment: change.comment,
-        version: finding.version + 1,
-        ...(change.confirmsPrior && finding.priorFindingId ? { confirmsPriorFindingId: finding.priorFindingId } : {}),
-      },
-    });
+    // Independent writes (other columns or other rows), sent together.
+    await Promise.all([
+      tx
+        .update(findings)
+        .set({ decision: change.decision, decisionReason: change.reason, comment: change.comment, decidedBy: actor.id, decidedAt, version: finding.version + 1 })
+        .where(eq(findings.id, finding.id)),
+      tx.update(inspections).set({ version: sql`${inspections.version} + 1` }).where(eq(inspections.id, input.inspectionId)),
+      decided ? writeMemory(tx, memoryChanges(decided)) : undefined,
+      recordAudit(tx, {
+        actorId: actor.id,
+        action: auditAction,
+        subjectType: "finding",
+        subjectId: finding.id,
+        details: {
+          inspectionId: input.inspectionId,
+          jobId: sheet.jobId,
+          from: finding.decision,
+          to: change.decision,
+          reason: change.reason,
+          comment: change.comment,
+          version: finding.version + 1,
+          ...(change.confirmsPrior && finding.priorFindingId ? { confirmsPriorFindingId: finding.priorFindingId } : {}),
+        },
+      }),
+    ]);
     return {
       findingId: finding.id,
       decision: change.decision,

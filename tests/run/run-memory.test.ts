@@ -4,14 +4,14 @@
 // suggestion back; three consecutive sheets with a finding at one place label it repeating; a finding at the same
 // place of both ups is "in every up". Invented run of two-up sheets (standard-food: registration tolerance 0.15 mm).
 import "../pipeline/support/test-env";
-import { and, eq } from "drizzle-orm";
+import { and, eq, inArray } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, db } from "@/db/client";
 import { auditEvents, findings } from "@/db/schema";
 import { closeQueues } from "@/lib/queue/queues";
 import { decideFinding, undoDecision } from "@/lib/review/decisions";
 import { getSheetView } from "@/lib/review/sheet";
-import { refreshRunMemory } from "@/lib/run/memory-store";
+import { loadRun, memoryChanges, refreshRunMemory } from "@/lib/run/memory-store";
 import { getRunView } from "@/lib/run/traceability";
 import { makeRun, type RunFixture } from "./support";
 
@@ -77,3 +77,31 @@ describe("run memory", () => {
     expect((await row(sheet(13).findingIds[0])).priorFindingId).toBeNull();
   });
 });
+
+describe("run memory under concurrent decisions", () => {
+  it("sixteen decisions sent at once on one run leave the memory a full recompute gives (nothing left to change)", async () => {
+    // Sixteen sheets with a finding at one place of up 1: every accept changes the suggestion of every later sheet.
+    const busy = await makeRun(Array.from({ length: 16 }, (_, k) => ({ sheetNumber: 101 + k, findings: [[40_000 + 30 * k, 30_000, 1]] as [number, number, number][] })));
+    await refreshRunMemory(db, busy.revisionId);
+    // Every other sheet accepted, the rest rejected, all at once (the pool gives them their own connections).
+    const results = await Promise.all(
+      busy.sheets.map((s, k) =>
+        decideFinding(busy.actors.reviewer, {
+          inspectionId: s.inspectionId,
+          findingId: s.findingIds[0],
+          version: 0,
+          ...(k % 2 === 0 ? { decision: "accepted", reason: "within_tolerance" } : { decision: "rejected", reason: "defect", comment: "Hickey in up 1." }),
+        } as Parameters<typeof decideFinding>[1]),
+      ),
+    );
+    expect(results.every((r) => r.version === 1)).toBe(true);
+    const run = await loadRun(db, busy.revisionId);
+    expect(memoryChanges(run!)).toEqual([]);
+    // And what the recompute gives, spelled out: a rejected sheet (odd positions) kept the suggestion it was decided
+    // with, which was one of the accepted sheets before it or none; the recurrence is the same spot on 16 sheets.
+    const rows = await db.select().from(findings).where(inArray(findings.inspectionId, busy.sheets.map((s) => s.inspectionId)));
+    expect(rows.every((r) => r.recurrence === "repeating")).toBe(true);
+    expect(rows.filter((r) => r.decision === "accepted")).toHaveLength(8);
+  });
+});
+
