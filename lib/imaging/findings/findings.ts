@@ -15,9 +15,8 @@ export interface Region {
   count: number;
   sumDeltaE: number;
   maxDeltaE: number;
-  /** Highest score (ΔE00 less the edge or flat allowance), and the sum of the scores. */
+  /** Highest score (ΔE00 less the edge allowance). */
   maxScore: number;
-  sumScore: number;
   /** Pixels whose score reaches the second level (the profile's ΔE00). */
   strongCount: number;
   /** ΔE-weighted votes for extra ink, missing ink, colour shift. */
@@ -41,7 +40,6 @@ export class RegionCollector {
   private runSum: number[] = [];
   private runMax: number[] = [];
   private runScore: number[] = [];
-  private runScoreSum: number[] = [];
   private runStrong: number[] = [];
   private runVotes: number[] = [];
   private runStructural: number[] = [];
@@ -85,12 +83,11 @@ export class RegionCollector {
       while (x < bandWidth) {
         if (!this.takes(deltaE[base + x], kind[base + x])) { x++; continue; }
         const start = x;
-        let sum = 0, max = 0, top = 0, scores = 0, strong = 0, v1 = 0, v2 = 0, v3 = 0, s1 = 0, s2 = 0, dl = 0, da = 0, db = 0, len = 0, lw = 0;
+        let sum = 0, max = 0, top = 0, strong = 0, v1 = 0, v2 = 0, v3 = 0, s1 = 0, s2 = 0, dl = 0, da = 0, db = 0, len = 0, lw = 0;
         while (x < bandWidth && this.takes(deltaE[base + x], kind[base + x])) {
           const e = deltaE[base + x];
           const sc = score[base + x];
           if (sc > top) top = sc;
-          scores += sc;
           if (sc >= this.peakLevel) strong++;
           sum += e;
           if (e > max) max = e;
@@ -108,7 +105,7 @@ export class RegionCollector {
         }
         const id = this.runY.length;
         this.runX0.push(pageX + start); this.runX1.push(pageX + x); this.runY.push(y);
-        this.runSum.push(sum); this.runMax.push(max); this.runScore.push(top); this.runScoreSum.push(scores); this.runStrong.push(strong); this.runVotes.push(v1, v2, v3); this.runStructural.push(s1, s2); this.runShift.push(dl, da, db, len); this.runLinework.push(lw);
+        this.runSum.push(sum); this.runMax.push(max); this.runScore.push(top); this.runStrong.push(strong); this.runVotes.push(v1, v2, v3); this.runStructural.push(s1, s2); this.runShift.push(dl, da, db, len); this.runLinework.push(lw);
         this.parent.push(id);
       }
       this.joinRows(this.prevStart, this.prevEnd, rowStart, this.runY.length);
@@ -146,7 +143,7 @@ export class RegionCollector {
       const root = this.find(i);
       let r = byRoot.get(root);
       if (!r) {
-        r = { x0: Infinity, y0: Infinity, x1: -Infinity, y1: -Infinity, count: 0, sumDeltaE: 0, maxDeltaE: 0, maxScore: 0, sumScore: 0, strongCount: 0, votes: [0, 0, 0], structural: [0, 0], shiftSum: [0, 0, 0], shiftLength: 0, onLinework: 0, moments: [0, 0, 0, 0, 0] };
+        r = { x0: Infinity, y0: Infinity, x1: -Infinity, y1: -Infinity, count: 0, sumDeltaE: 0, maxDeltaE: 0, maxScore: 0, strongCount: 0, votes: [0, 0, 0], structural: [0, 0], shiftSum: [0, 0, 0], shiftLength: 0, onLinework: 0, moments: [0, 0, 0, 0, 0] };
         byRoot.set(root, r);
       }
       r.x0 = Math.min(r.x0, this.runX0[i]); r.x1 = Math.max(r.x1, this.runX1[i]);
@@ -155,7 +152,6 @@ export class RegionCollector {
       r.sumDeltaE += this.runSum[i];
       r.maxDeltaE = Math.max(r.maxDeltaE, this.runMax[i]);
       r.maxScore = Math.max(r.maxScore, this.runScore[i]);
-      r.sumScore += this.runScoreSum[i];
       r.strongCount += this.runStrong[i];
       for (let k = 0; k < 3; k++) r.votes[k] += this.runVotes[i * 3 + k];
       r.structural[0] += this.runStructural[i * 2];
@@ -205,10 +201,7 @@ const INK_PEAK_SHARE = 1.25;
  * of a measured patch; from memory): a region whose mean ΔE00 stays under the profile's figure is within
  * tolerance, whatever its peak. 0.9 of the figure, not all of it, because a scan's mean of a reprinted patch
  * reads a little under the patch's own ΔE00 (6.66 for a patch of 6.8 on the second simulator's training
- * sheets); the strays this removes there were board and ink mottle of mean 2.7–3.6 (39 of 460 regions). The mean
- * is of the scores, the ΔE00 less the flat allowance of the tone (allowances.ts), so that a tone whose own
- * noise is large must differ by more: a chocolate brown's moiré gave colour regions of mean ΔE00 3.6–4.4
- * over whole panels.
+ * sheets); the strays this removes there were board and ink mottle of mean 2.7–3.6 (39 of 460 regions).
  */
 const COLOUR_MEAN_SHARE = 0.9;
 /** Structural pixels (both kinds together) a changed glyph needs, in units of minStrongPx. */
@@ -248,7 +241,7 @@ export function regionsToFindings(regions: Region[], rules: FindingRules): { fin
     const areaMm2 = r.count * pxArea;
     if (kindOf(r.votes) !== "colour_shift") return areaMm2 >= rules.minAreaMm2 && (peak === undefined || r.maxDeltaE >= INK_PEAK_SHARE * peak);
     const spot = peak !== undefined && r.maxDeltaE >= SPOT_PEAK_SHARE * peak;
-    return areaMm2 >= (spot ? rules.minAreaMm2 : Math.max(rules.minAreaMm2, MIN_COLOUR_SHIFT_MM2)) && (peak === undefined || r.sumScore / r.count >= COLOUR_MEAN_SHARE * peak);
+    return areaMm2 >= (spot ? rules.minAreaMm2 : Math.max(rules.minAreaMm2, MIN_COLOUR_SHIFT_MM2)) && (peak === undefined || r.sumDeltaE / r.count >= COLOUR_MEAN_SHARE * peak);
   };
   const kept = merged.filter(keeps).sort((a, b) => b.count - a.count);
   const findings = kept.map((r): Finding => {
@@ -418,7 +411,7 @@ function combine(regions: Region[], groups: UnionFind): Region[] {
     }
     a.x0 = Math.min(a.x0, b.x0); a.y0 = Math.min(a.y0, b.y0);
     a.x1 = Math.max(a.x1, b.x1); a.y1 = Math.max(a.y1, b.y1);
-    a.count += b.count; a.sumDeltaE += b.sumDeltaE; a.maxDeltaE = Math.max(a.maxDeltaE, b.maxDeltaE); a.maxScore = Math.max(a.maxScore, b.maxScore); a.sumScore += b.sumScore; a.strongCount += b.strongCount;
+    a.count += b.count; a.sumDeltaE += b.sumDeltaE; a.maxDeltaE = Math.max(a.maxDeltaE, b.maxDeltaE); a.maxScore = Math.max(a.maxScore, b.maxScore); a.strongCount += b.strongCount;
     for (let k = 0; k < 3; k++) a.votes[k] += b.votes[k];
     a.structural[0] += b.structural[0];
     a.structural[1] += b.structural[1];
