@@ -230,13 +230,12 @@ function holeGroups(pairs: SamplePairs, flat: ColourGroup[]): ColourGroup[] {
 }
 
 /** Samples grouped by artwork colour (6 bits a channel); each group's scan colour is its median. */
-function groupByArtwork(art: Float32Array, scanValues: Float32Array, n: number): ColourGroup[] {
-  const a = art;
+function groupByArtwork(artValues: Float32Array, scanValues: Float32Array, n: number): ColourGroup[] {
   // Counting sort of the samples by key: each group's members end up next to each other.
   const keys = new Int32Array(n);
   const starts = new Int32Array((1 << 18) + 1);
   for (let i = 0; i < n; i++) {
-    keys[i] = ((a[i * 3] >> 2) << 12) | ((a[i * 3 + 1] >> 2) << 6) | (a[i * 3 + 2] >> 2);
+    keys[i] = ((artValues[i * 3] >> 2) << 12) | ((artValues[i * 3 + 1] >> 2) << 6) | (artValues[i * 3 + 2] >> 2);
     starts[keys[i] + 1]++;
   }
   for (let k = 1; k < starts.length; k++) starts[k] += starts[k - 1];
@@ -249,7 +248,7 @@ function groupByArtwork(art: Float32Array, scanValues: Float32Array, n: number):
     if (to - from < MIN_GROUP) continue;
     const art = [0, 0, 0], scan = [0, 0, 0];
     for (let c = 0; c < 3; c++) {
-      art[c] = groupMedian(a, order, from, to, c, values);
+      art[c] = groupMedian(artValues, order, from, to, c, values);
       scan[c] = groupMedian(scanValues, order, from, to, c, values);
     }
     groups.push({ art, scan, count: to - from });

@@ -302,8 +302,9 @@ export function kindOfRegion(r: Region, dpi: number): FindingKind {
   const { length, width } = shapeMm(r, dpi);
   if (length >= STREAK_MIN_LENGTH_MM && width <= STREAK_MAX_WIDTH_MM && length >= STREAK_MIN_ELONGATION * width) return "streak";
   const ink = r.votes[0] + r.votes[1];
-  if (r.onLinework >= TEXT_MIN_LINEWORK_SHARE * r.count && r.votes[1] >= TEXT_MIN_MISSING_SHARE * ink) return "changed_text";
-  if (areaMm2 >= MIN_COLOUR_SHIFT_MM2 && r.sumDeltaE / r.count <= COLOUR_PATCH_MAX_MEAN && r.onLinework < TEXT_MIN_LINEWORK_SHARE * r.count) return "colour_shift";
+  const onType = r.onLinework >= TEXT_MIN_LINEWORK_SHARE * r.count;
+  if (onType && r.votes[1] >= TEXT_MIN_MISSING_SHARE * ink) return "changed_text";
+  if (!onType && areaMm2 >= MIN_COLOUR_SHIFT_MM2 && r.sumDeltaE / r.count <= COLOUR_PATCH_MAX_MEAN) return "colour_shift";
   return base;
 }
 
